@@ -1,0 +1,4 @@
+//! Results without random numbers: exact enumeration of small yes/no designs (and, later,
+//! expected Fisher information), from the same tables as the Monte Carlo path.
+
+pub mod exact;

@@ -1,0 +1,180 @@
+//! What each command does, as library functions the binary calls.
+//!
+//! Exit codes: 0 success; 2 bad input (plan, options, output path); 1 anything else
+//! (an I/O failure while writing results).
+
+use crate::engine::{self, RunError, RunOptions, ScenarioSummary};
+use crate::plan::{Plan, PlanError};
+use crate::report::{self, PendingFile};
+use std::fmt::Write;
+use std::path::{Path, PathBuf};
+use thiserror::Error;
+
+/// Any failure of a command, with its exit code.
+#[derive(Debug, Error)]
+pub enum AppError {
+    #[error("{0}")]
+    Plan(#[from] PlanError),
+    #[error("{0}")]
+    Run(#[from] RunError),
+    #[error(
+        "{path}: cannot write output: {source}\n  allowed: a file path in an existing, writable folder"
+    )]
+    Output {
+        path: PathBuf,
+        source: std::io::Error,
+    },
+    #[error("{0}")]
+    Internal(String),
+}
+
+impl AppError {
+    /// The documented exit code of this failure.
+    pub fn exit_code(&self) -> i32 {
+        match self {
+            Self::Plan(_) | Self::Run(_) | Self::Output { .. } => 2,
+            Self::Internal(_) => 1,
+        }
+    }
+}
+
+/// `vigil check`: the expanded scenarios, without simulating.
+pub fn check(path: &Path) -> Result<String, AppError> {
+    let plan = Plan::load(path)?;
+    let mut out = String::new();
+    let _ = writeln!(
+        out,
+        "{}: plan is valid — {}",
+        path.display(),
+        plan.study.title
+    );
+    let o = &plan.observer;
+    let _ = writeln!(
+        out,
+        "observer: d′ = {}, c = {}, σ = {}; {} experiments per scenario, seed {}, {:.0}% intervals, {} correction",
+        o.d_prime,
+        o.criterion,
+        o.sigma,
+        plan.study.experiments,
+        plan.study.seed,
+        100.0 * plan.study.confidence,
+        plan.study.rate_correction.name()
+    );
+    let mut t = report::style::new_table(vec![
+        "scenario", "design", "record", "presence", "trials", "present", "absent",
+    ]);
+    for s in plan.scenarios() {
+        let d = &plan.designs[s.design];
+        t.add_row(vec![
+            (s.id + 1).to_string(),
+            d.name.clone(),
+            d.record_label(),
+            format!("{}", d.presence),
+            s.trials.to_string(),
+            s.split.present.to_string(),
+            s.split.absent.to_string(),
+        ]);
+    }
+    report::style::right_align(&mut t, 4..7);
+    let _ = writeln!(out, "{t}");
+    let _ = writeln!(
+        out,
+        "present trials = presence × trials rounded to the nearest whole number (halves round up); absent = the rest."
+    );
+    Ok(out)
+}
+
+/// Options of `vigil run`.
+#[derive(Debug, Clone, Default)]
+pub struct RunRequest {
+    pub plan: PathBuf,
+    pub csv: Option<PathBuf>,
+    pub json: Option<PathBuf>,
+    pub exact: bool,
+    /// Overrides the plan's number of experiments (quick looks, tests).
+    pub experiments: Option<u64>,
+}
+
+/// A loaded plan with its claimed output files, ready to run.
+pub struct PreparedRun {
+    pub plan: Plan,
+    pub options: RunOptions,
+    csv: Option<PendingFile>,
+    json: Option<PendingFile>,
+}
+
+impl PreparedRun {
+    /// Replicates the run will simulate (for a progress bar).
+    pub fn total_replicates(&self) -> u64 {
+        engine::total_replicates(&self.plan, self.options)
+    }
+}
+
+/// Loads and checks everything that can fail before the long work starts.
+pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
+    let mut plan = Plan::load(&req.plan)?;
+    if let Some(n) = req.experiments {
+        if n == 0 {
+            return Err(AppError::Run(RunError::NoExperiments));
+        }
+        plan.study.experiments = n;
+    }
+    let options = RunOptions { exact: req.exact };
+    engine::preflight(&plan, options)?;
+    let claim = |p: &Option<PathBuf>| -> Result<Option<PendingFile>, AppError> {
+        p.as_ref()
+            .map(|path| {
+                PendingFile::claim(path).map_err(|source| AppError::Output {
+                    path: path.clone(),
+                    source,
+                })
+            })
+            .transpose()
+    };
+    let csv = claim(&req.csv)?;
+    let json = claim(&req.json)?;
+    Ok(PreparedRun {
+        plan,
+        options,
+        csv,
+        json,
+    })
+}
+
+/// Runs a prepared plan, writes the output files whole and returns the terminal report.
+pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<String, AppError> {
+    let summaries = engine::run_plan(&run.plan, run.options, progress)?;
+    write_outputs(&run.plan, &summaries, run.csv, run.json)?;
+    Ok(report::terminal::render(&run.plan, &summaries))
+}
+
+fn write_outputs(
+    plan: &Plan,
+    summaries: &[ScenarioSummary],
+    csv: Option<PendingFile>,
+    json: Option<PendingFile>,
+) -> Result<(), AppError> {
+    // Render both before committing either, so a failure leaves neither half-written.
+    let csv_bytes = match &csv {
+        Some(_) => Some(
+            report::csv_out::render(plan, summaries)
+                .map_err(|e| AppError::Internal(e.to_string()))?,
+        ),
+        None => None,
+    };
+    let json_bytes = match &json {
+        Some(_) => Some(
+            report::json_out::render(plan, summaries)
+                .map_err(|e| AppError::Internal(e.to_string()))?,
+        ),
+        None => None,
+    };
+    for (file, bytes) in [(csv, csv_bytes), (json, json_bytes)] {
+        if let (Some(file), Some(bytes)) = (file, bytes) {
+            let path = file.target().to_path_buf();
+            file.commit(&bytes)
+                .map_err(|source| AppError::Output { path, source })?;
+        }
+    }
+    Ok(())
+}

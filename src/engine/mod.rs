@@ -1,0 +1,138 @@
+//! The engine: for every scenario, simulate → fit → tally in parallel, then summarise.
+//!
+//! Printing stays out: progress goes to a callback the command line turns into a bar.
+
+pub mod moments;
+pub mod parallel;
+pub mod summary;
+pub mod tally;
+pub mod yesno_kernel;
+
+pub use summary::{DatasetSummary, Figure, Method, QuantitySummary, ScenarioSummary, Share};
+pub use tally::Quantity;
+
+use crate::analytic::exact;
+use crate::design::Response;
+use crate::model::normal;
+use crate::plan::{Plan, Scenario};
+use parallel::run_replicates;
+use thiserror::Error;
+use yesno_kernel::YesNoKernel;
+
+/// How to run a plan.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub struct RunOptions {
+    /// Enumerate yes/no outcomes exactly instead of simulating.
+    pub exact: bool,
+}
+
+/// Why a plan could not be run as asked.
+#[derive(Debug, Error, PartialEq)]
+pub enum RunError {
+    #[error(
+        "design \"{design}\" at {trials} trials has {outcomes} outcomes, more than the {max} that --exact enumerates; drop --exact to simulate it"
+    )]
+    TooLargeToEnumerate {
+        design: String,
+        trials: u32,
+        outcomes: u64,
+        max: u64,
+    },
+    #[error("design \"{design}\" records a rating scale; --exact covers yes/no designs only")]
+    ExactNeedsYesNo { design: String },
+    #[error("--experiments must be at least 1")]
+    NoExperiments,
+}
+
+/// Critical value of a two-sided Wald interval at `level`: z_{1−(1−level)/2}.
+pub fn z_critical(level: f64) -> f64 {
+    normal::z(1.0 - (1.0 - level) / 2.0).unwrap_or(f64::NAN)
+}
+
+/// Number of replicates the whole plan will run (for progress bars).
+pub fn total_replicates(plan: &Plan, options: RunOptions) -> u64 {
+    if options.exact {
+        0
+    } else {
+        plan.scenarios().len() as u64 * plan.study.experiments
+    }
+}
+
+/// Checks that the plan can be run with these options before any work starts.
+pub fn preflight(plan: &Plan, options: RunOptions) -> Result<(), RunError> {
+    if !options.exact {
+        return Ok(());
+    }
+    for s in plan.scenarios() {
+        let design = &plan.designs[s.design];
+        if !matches!(design.response, Response::YesNo) {
+            return Err(RunError::ExactNeedsYesNo {
+                design: design.name.clone(),
+            });
+        }
+        if !exact::can_enumerate(s.split.present, s.split.absent) {
+            return Err(RunError::TooLargeToEnumerate {
+                design: design.name.clone(),
+                trials: s.trials,
+                outcomes: (u64::from(s.split.present) + 1) * (u64::from(s.split.absent) + 1),
+                max: exact::MAX_OUTCOMES,
+            });
+        }
+    }
+    Ok(())
+}
+
+/// Runs every scenario of the plan and summarises each.
+pub fn run_plan(
+    plan: &Plan,
+    options: RunOptions,
+    progress: &(dyn Fn(u64) + Sync),
+) -> Result<Vec<ScenarioSummary>, RunError> {
+    preflight(plan, options)?;
+    let scenarios = plan.scenarios();
+    Ok(scenarios
+        .iter()
+        .map(|s| run_scenario(plan, s, options, progress))
+        .collect())
+}
+
+/// Runs one scenario.
+pub fn run_scenario(
+    plan: &Plan,
+    scenario: &Scenario,
+    options: RunOptions,
+    progress: &(dyn Fn(u64) + Sync),
+) -> ScenarioSummary {
+    let design = &plan.designs[scenario.design];
+    let z_crit = z_critical(plan.study.confidence);
+    match &design.response {
+        Response::YesNo => {
+            let kernel = YesNoKernel::new(
+                &plan.observer,
+                scenario.split.present,
+                scenario.split.absent,
+                plan.study.rate_correction,
+                z_crit,
+            );
+            if options.exact {
+                let tally = exact::enumerate(&kernel);
+                summary::summarise(*scenario, &design.name, &tally, Method::Exact)
+            } else {
+                let tally = run_replicates(
+                    &kernel,
+                    plan.study.seed,
+                    scenario.id,
+                    plan.study.experiments,
+                    progress,
+                );
+                summary::summarise(*scenario, &design.name, &tally, Method::MonteCarlo)
+            }
+        }
+        Response::Rating(_) => summary::summarise(
+            *scenario,
+            &design.name,
+            &tally::EstimateTally::new(Vec::new()),
+            Method::MonteCarlo,
+        ),
+    }
+}

@@ -1,0 +1,180 @@
+//! From tallies to the numbers a report shows, each with its Monte Carlo uncertainty.
+//!
+//! Means carry their Monte Carlo standard error; proportions carry a Wilson 95% interval
+//! (Wilson 1927). Exact enumeration has no Monte Carlo error: its SEs are 0 and its
+//! intervals collapse to the value.
+
+use super::tally::{DatasetWeights, EstimateTally, Quantity, QuantityTally};
+use crate::infer::wilson_interval;
+use crate::plan::Scenario;
+use serde::Serialize;
+
+/// Level of the Wilson intervals on Monte Carlo proportions.
+pub const MC_LEVEL: f64 = 0.95;
+
+/// A Monte Carlo mean and its standard error.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Figure {
+    pub value: f64,
+    pub mc_se: f64,
+}
+
+/// A proportion with a Wilson 95% interval for its Monte Carlo error.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Share {
+    pub value: f64,
+    pub low: f64,
+    pub high: f64,
+}
+
+/// How the summaries were obtained.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Method {
+    MonteCarlo,
+    Exact,
+}
+
+/// Summary of one estimated quantity over all usable datasets of a scenario.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct QuantitySummary {
+    pub quantity: Quantity,
+    pub truth: f64,
+    pub mean: Figure,
+    pub bias: Figure,
+    pub sd: Figure,
+    pub rmse: Figure,
+    pub mean_se: Figure,
+    pub coverage: Share,
+    pub mean_width: Figure,
+}
+
+/// Shares of datasets by outcome.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct DatasetSummary {
+    /// Datasets simulated (Monte Carlo) or 1 (exact: probabilities).
+    pub total: f64,
+    pub used: Share,
+    pub extreme: Share,
+    pub degenerate: Share,
+    pub not_converged: Share,
+}
+
+/// Everything reported for one design × trial count.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ScenarioSummary {
+    pub scenario: Scenario,
+    pub design: String,
+    pub method: Method,
+    pub quantities: Vec<QuantitySummary>,
+    /// Correlation of d̂′ and ĉ across datasets.
+    pub correlation: Figure,
+    pub datasets: DatasetSummary,
+}
+
+impl ScenarioSummary {
+    /// The summary of one quantity, if the design estimates it.
+    pub fn quantity(&self, q: Quantity) -> Option<&QuantitySummary> {
+        self.quantities.iter().find(|s| s.quantity == q)
+    }
+}
+
+/// Summarises a tally.
+pub fn summarise(
+    scenario: Scenario,
+    design: &str,
+    tally: &EstimateTally,
+    method: Method,
+) -> ScenarioSummary {
+    let exact = method == Method::Exact;
+    let quantities = tally
+        .quantities
+        .iter()
+        .map(|q| quantity(q, exact))
+        .collect();
+    let r = tally.pair.correlation();
+    let n = tally.pair.count() as f64;
+    let correlation = Figure {
+        value: r,
+        // Fisher-z approximation: SE(r) ≈ (1 − r²)/√(n − 3).
+        mc_se: if exact {
+            0.0
+        } else {
+            (1.0 - r * r) / (n - 3.0).max(1.0).sqrt()
+        },
+    };
+    ScenarioSummary {
+        scenario,
+        design: design.to_string(),
+        method,
+        quantities,
+        correlation,
+        datasets: datasets(&tally.datasets, exact),
+    }
+}
+
+fn quantity(q: &QuantityTally, exact: bool) -> QuantitySummary {
+    let n = q.estimate.count() as f64;
+    let mean = figure(q.estimate.mean(), q.estimate.mc_se(exact));
+    let sd_value = q.estimate.variance(exact).sqrt();
+    let mse = q.squared_error.mean();
+    let rmse_value = mse.sqrt();
+    QuantitySummary {
+        quantity: q.quantity,
+        truth: q.truth,
+        bias: figure(mean.value - q.truth, mean.mc_se),
+        // Normal-theory MC error of an SD: SD/√(2(n − 1)).
+        sd: figure(
+            sd_value,
+            if exact {
+                0.0
+            } else {
+                sd_value / (2.0 * (n - 1.0)).sqrt()
+            },
+        ),
+        // Delta method: SE(√m) = SE(m)/(2√m).
+        rmse: figure(
+            rmse_value,
+            q.squared_error.mc_se(exact) / (2.0 * rmse_value),
+        ),
+        mean,
+        mean_se: figure(q.se.mean(), q.se.mc_se(exact)),
+        coverage: share(q.covered, q.estimate_weight(), exact),
+        mean_width: figure(q.width.mean(), q.width.mc_se(exact)),
+    }
+}
+
+fn datasets(d: &DatasetWeights, exact: bool) -> DatasetSummary {
+    DatasetSummary {
+        total: d.total,
+        used: share(d.used, d.total, exact),
+        extreme: share(d.extreme, d.total, exact),
+        degenerate: share(d.degenerate, d.total, exact),
+        not_converged: share(d.not_converged, d.total, exact),
+    }
+}
+
+fn figure(value: f64, mc_se: f64) -> Figure {
+    Figure { value, mc_se }
+}
+
+/// A proportion `x / n`; Wilson interval for Monte Carlo counts, a point for exact weights.
+fn share(x: f64, n: f64, exact: bool) -> Share {
+    if n <= 0.0 {
+        return Share {
+            value: f64::NAN,
+            low: f64::NAN,
+            high: f64::NAN,
+        };
+    }
+    let value = x / n;
+    if exact {
+        return Share {
+            value,
+            low: value,
+            high: value,
+        };
+    }
+    let (low, high) = wilson_interval(x, n, MC_LEVEL);
+    Share { value, low, high }
+}

@@ -1,0 +1,186 @@
+//! Streaming tallies of fitted estimates: memory is fixed, whatever the replicate count.
+
+use super::moments::{CoMoments, Moments};
+use serde::Serialize;
+
+/// A quantity the report summarises.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Quantity {
+    DPrime,
+    Criterion,
+    Sigma,
+    Slope,
+    DA,
+    Az,
+}
+
+impl Quantity {
+    /// Label for tables.
+    pub fn label(self) -> &'static str {
+        match self {
+            Self::DPrime => "d′",
+            Self::Criterion => "c",
+            Self::Sigma => "σ",
+            Self::Slope => "zROC slope",
+            Self::DA => "d_a",
+            Self::Az => "A_z",
+        }
+    }
+
+    /// Machine name for CSV and JSON.
+    pub fn key(self) -> &'static str {
+        match self {
+            Self::DPrime => "d_prime",
+            Self::Criterion => "criterion",
+            Self::Sigma => "sigma",
+            Self::Slope => "zroc_slope",
+            Self::DA => "d_a",
+            Self::Az => "a_z",
+        }
+    }
+}
+
+/// Running sums for one estimated quantity.
+#[derive(Debug, Clone, PartialEq)]
+pub struct QuantityTally {
+    pub quantity: Quantity,
+    pub truth: f64,
+    /// Critical value of the Wald interval, z_{1−(1−level)/2}.
+    pub z_crit: f64,
+    pub estimate: Moments,
+    pub squared_error: Moments,
+    pub se: Moments,
+    pub width: Moments,
+    /// Weight of datasets whose interval covered the truth.
+    pub covered: f64,
+}
+
+impl QuantityTally {
+    pub fn new(quantity: Quantity, truth: f64, z_crit: f64) -> Self {
+        Self {
+            quantity,
+            truth,
+            z_crit,
+            estimate: Moments::default(),
+            squared_error: Moments::default(),
+            se: Moments::default(),
+            width: Moments::default(),
+            covered: 0.0,
+        }
+    }
+
+    #[inline]
+    fn push(&mut self, est: f64, se: f64, w: f64) {
+        let err = est - self.truth;
+        self.estimate.push(est, w);
+        self.squared_error.push(err * err, w);
+        self.se.push(se, w);
+        let half = self.z_crit * se;
+        self.width.push(2.0 * half, w);
+        if err.abs() <= half {
+            self.covered += w;
+        }
+    }
+
+    /// Total weight of datasets that entered this quantity.
+    pub fn estimate_weight(&self) -> f64 {
+        self.estimate.weight()
+    }
+
+    fn merge(&mut self, o: &Self) {
+        self.estimate.merge(&o.estimate);
+        self.squared_error.merge(&o.squared_error);
+        self.se.merge(&o.se);
+        self.width.merge(&o.width);
+        self.covered += o.covered;
+    }
+}
+
+/// What happened to the simulated datasets, as weights (counts for Monte Carlo,
+/// probabilities for exact enumeration).
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize)]
+pub struct DatasetWeights {
+    /// All datasets.
+    pub total: f64,
+    /// Datasets whose fit entered the summaries.
+    pub used: f64,
+    /// Datasets with a rate of 0 or 1 (or an empty category) that the correction handled.
+    pub extreme: f64,
+    /// Datasets left out because no estimate exists (rate 0 or 1 with no correction).
+    pub degenerate: f64,
+    /// Datasets whose fit did not converge; left out, never averaged in.
+    pub not_converged: f64,
+}
+
+/// Everything a scenario accumulates.
+#[derive(Debug, Clone, PartialEq)]
+pub struct EstimateTally {
+    pub quantities: Vec<QuantityTally>,
+    /// (d̂′, ĉ) pairs, for how strongly sensitivity and bias trade off.
+    pub pair: CoMoments,
+    pub datasets: DatasetWeights,
+}
+
+/// How a dataset ended.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Outcome {
+    Fitted,
+    Degenerate,
+    NotConverged,
+}
+
+impl EstimateTally {
+    pub fn new(quantities: Vec<QuantityTally>) -> Self {
+        Self {
+            quantities,
+            pair: CoMoments::default(),
+            datasets: DatasetWeights::default(),
+        }
+    }
+
+    /// Records a fitted dataset. `values` holds (estimate, SE) in the order of
+    /// `quantities`; the first two must be d′ and c.
+    #[inline]
+    pub fn push_fit(&mut self, values: &[(f64, f64)], extreme: bool, w: f64) {
+        self.count(Outcome::Fitted, extreme, w);
+        for (q, &(est, se)) in self.quantities.iter_mut().zip(values) {
+            q.push(est, se, w);
+        }
+        self.pair.push(values[0].0, values[1].0, w);
+    }
+
+    /// Records a dataset that gave no usable fit.
+    #[inline]
+    pub fn push_unfitted(&mut self, outcome: Outcome, extreme: bool, w: f64) {
+        self.count(outcome, extreme, w);
+    }
+
+    #[inline]
+    fn count(&mut self, outcome: Outcome, extreme: bool, w: f64) {
+        let d = &mut self.datasets;
+        d.total += w;
+        if extreme {
+            d.extreme += w;
+        }
+        match outcome {
+            Outcome::Fitted => d.used += w,
+            Outcome::Degenerate => d.degenerate += w,
+            Outcome::NotConverged => d.not_converged += w,
+        }
+    }
+
+    /// Adds another tally of the same scenario (fixed order → fixed bits).
+    pub fn merge(&mut self, other: Self) {
+        for (a, b) in self.quantities.iter_mut().zip(&other.quantities) {
+            a.merge(b);
+        }
+        self.pair.merge(&other.pair);
+        let (d, o) = (&mut self.datasets, other.datasets);
+        d.total += o.total;
+        d.used += o.used;
+        d.extreme += o.extreme;
+        d.degenerate += o.degenerate;
+        d.not_converged += o.not_converged;
+    }
+}

@@ -1,0 +1,91 @@
+//! What to do with a hit or false-alarm rate of 0 or 1, where z is infinite.
+//!
+//! The choice is the plan's, named, and reported: every summary says how many datasets
+//! needed it.
+
+use serde::Serialize;
+
+/// A named rule for rates of 0 or 1.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum RateCorrection {
+    /// Add ½ to every cell, extreme or not: rate = (x + ½)/(n + 1) (Hautus 1995).
+    LogLinear,
+    /// Only extreme rates move: 0 → 1/(2n), 1 → 1 − 1/(2n) (Macmillan & Kaplan 1985).
+    HalfN,
+    /// No correction: a dataset with a rate of 0 or 1 is degenerate and left out.
+    None,
+}
+
+impl RateCorrection {
+    /// Names accepted in plan files, in the order shown to users.
+    pub const NAMES: [&'static str; 3] = ["log-linear", "half-n", "none"];
+
+    /// Parses a plan value; `None` when the name is not one of [`Self::NAMES`].
+    pub fn from_name(name: &str) -> Option<Self> {
+        match name {
+            "log-linear" => Some(Self::LogLinear),
+            "half-n" => Some(Self::HalfN),
+            "none" => Some(Self::None),
+            _ => Option::None,
+        }
+    }
+
+    /// The plan-file name of this rule.
+    pub fn name(self) -> &'static str {
+        match self {
+            Self::LogLinear => "log-linear",
+            Self::HalfN => "half-n",
+            Self::None => "none",
+        }
+    }
+
+    /// The rate used for `x` events out of `n` trials, or `None` when the rule leaves
+    /// the dataset degenerate (rate 0 or 1 with no correction). `n` must be positive.
+    pub fn rate(self, x: u32, n: u32) -> Option<f64> {
+        let (x, n) = (f64::from(x), f64::from(n));
+        match self {
+            Self::LogLinear => Some((x + 0.5) / (n + 1.0)),
+            Self::HalfN if x == 0.0 => Some(0.5 / n),
+            Self::HalfN if x == n => Some(1.0 - 0.5 / n),
+            Self::HalfN => Some(x / n),
+            Self::None if x == 0.0 || x == n => Option::None,
+            Self::None => Some(x / n),
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Rules as stated in references.md: Macmillan & Kaplan (1985) 1/(2N), N = 40 gives
+    // F = 0.0125 [memory for the paper, rule confirmed in secondary sources]; Hautus (1995)
+    // log-linear adds ½ to every cell [memory].
+    #[test]
+    fn half_n_moves_only_extremes() {
+        assert_eq!(RateCorrection::HalfN.rate(0, 40), Some(0.0125));
+        assert_eq!(RateCorrection::HalfN.rate(40, 40), Some(1.0 - 0.0125));
+        assert_eq!(RateCorrection::HalfN.rate(10, 40), Some(0.25));
+    }
+
+    #[test]
+    fn log_linear_moves_every_cell() {
+        assert_eq!(RateCorrection::LogLinear.rate(10, 40), Some(10.5 / 41.0));
+        assert_eq!(RateCorrection::LogLinear.rate(0, 9), Some(0.05));
+    }
+
+    #[test]
+    fn none_marks_extremes_degenerate() {
+        assert_eq!(RateCorrection::None.rate(0, 5), None);
+        assert_eq!(RateCorrection::None.rate(5, 5), None);
+        assert_eq!(RateCorrection::None.rate(2, 5), Some(0.4));
+    }
+
+    #[test]
+    fn names_round_trip() {
+        for name in RateCorrection::NAMES {
+            assert_eq!(RateCorrection::from_name(name).unwrap().name(), name);
+        }
+    }
+}

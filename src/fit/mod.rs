@@ -1,0 +1,10 @@
+//! Fits: one dataset in, estimates with standard errors and a status out.
+//!
+//! The closed-form yes/no fit is a fast path (table lookups per scenario); rating designs
+//! use maximum likelihood with analytic derivatives.
+
+pub mod correction;
+pub mod yesno;
+
+pub use correction::RateCorrection;
+pub use yesno::{YesNoFit, ZEntry, ZTable, fit_yes_no};

@@ -1,0 +1,5 @@
+//! Intervals and tests.
+
+mod wilson;
+
+pub use wilson::wilson_interval;

@@ -1,0 +1,7 @@
+//! The observer: evidence distributions, criteria, response probabilities and the
+//! measures of signal detection theory. Knows nothing of plans or random numbers.
+
+pub mod normal;
+pub mod observer;
+
+pub use observer::{Observer, Rates, YesNoMeasures};

@@ -1,0 +1,31 @@
+//! JSON: everything, plus the resolved plan, seed and version, so a result can be traced.
+//! No timestamps or thread counts: the same plan and seed give the same bytes.
+
+use crate::engine::ScenarioSummary;
+use crate::plan::Plan;
+use serde::Serialize;
+
+#[derive(Serialize)]
+struct Document<'a> {
+    tool: &'static str,
+    version: &'static str,
+    seed: u64,
+    plan: &'a Plan,
+    results: &'a [ScenarioSummary],
+    caution: &'static str,
+}
+
+/// The JSON bytes of a run (pretty-printed, newline-terminated).
+pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> serde_json::Result<Vec<u8>> {
+    let doc = Document {
+        tool: "vigil",
+        version: env!("CARGO_PKG_VERSION"),
+        seed: plan.study.seed,
+        plan,
+        results: summaries,
+        caution: super::CAUTION,
+    };
+    let mut bytes = serde_json::to_vec_pretty(&doc)?;
+    bytes.push(b'\n');
+    Ok(bytes)
+}

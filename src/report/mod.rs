@@ -1,0 +1,21 @@
+//! Reports: pure functions from summaries to text or bytes, one format per file.
+//!
+//! Nothing here computes statistics; it formats what the engine summarised. Output files
+//! are written whole or not at all (see [`output_file`]).
+
+pub mod csv_out;
+pub mod format;
+pub mod json_out;
+pub mod output_file;
+pub mod reading;
+pub mod style;
+pub mod terminal;
+
+pub use output_file::PendingFile;
+
+/// The caution every report carries: results rest on assumptions; animal numbers are
+/// decided with the local animal-welfare body.
+pub const CAUTION: &str = "These figures rest on the plan's assumptions (the hypothesised d′ and criterion, \
+Gaussian evidence, independent trials, no learning or habituation). They size an experiment; they do not \
+license one. Numbers of animals and trials are settled with your local animal-welfare body and the \
+regulations that apply, under the Reduction principle: use the fewest animals that answer the question.";

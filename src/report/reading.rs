@@ -1,0 +1,84 @@
+//! One line per design saying what its numbers mean for the person planning.
+
+use crate::design::Design;
+use crate::engine::{Quantity, ScenarioSummary};
+
+/// |r(d̂′, ĉ)| below this is read as "told apart".
+pub const SEPARATED_R: f64 = 0.3;
+/// Share of datasets with a rate of 0 or 1 above which estimates lean on the correction.
+pub const EXTREME_WARN: f64 = 0.10;
+
+/// A plain-words reading of one design's rows (trial counts increasing).
+pub fn reading(design: &Design, rows: &[&ScenarioSummary], level: f64) -> String {
+    let (Some(first), Some(last)) = (rows.first(), rows.last()) else {
+        return format!("{}: nothing to report.", design.name);
+    };
+    let pct = 100.0 * level;
+    let mut parts = vec![format!(
+        "c is pinned to ±{} and d′ to ±{} at {} trials, ±{} and ±{} at {} trials ({pct:.0}% half-widths)",
+        half_width(first, Quantity::Criterion),
+        half_width(first, Quantity::DPrime),
+        first.scenario.trials,
+        half_width(last, Quantity::Criterion),
+        half_width(last, Quantity::DPrime),
+        last.scenario.trials
+    )];
+    match rows
+        .iter()
+        .find(|s| s.correlation.value.abs() <= SEPARATED_R)
+    {
+        Some(s) if s.scenario.trials == first.scenario.trials => parts.push(format!(
+            "bias and sensitivity are told apart at every count (|r| ≤ {:.2})",
+            first
+                .correlation
+                .value
+                .abs()
+                .max(last.correlation.value.abs())
+        )),
+        Some(s) => parts.push(format!(
+            "the estimates of d′ and c trade off (|r| = {:.2}) until {} trials",
+            first.correlation.value.abs(),
+            s.scenario.trials
+        )),
+        None => parts.push(format!(
+            "d′ and c still trade off at {} trials (r = {:.2}): collect more trials or record more",
+            last.scenario.trials, last.correlation.value
+        )),
+    }
+    if let Some(s) = rows
+        .iter()
+        .rev()
+        .find(|s| s.datasets.extreme.value > EXTREME_WARN)
+    {
+        parts.push(format!(
+            "at {} trials {:.0}% of datasets hit a rate of 0 or 1, so rows up to there lean on the correction",
+            s.scenario.trials,
+            100.0 * s.datasets.extreme.value
+        ));
+    }
+    if let Some(s) = rows.iter().find(|s| undercovers(s, level)) {
+        parts.push(format!(
+            "intervals under-cover at {} trials ({:.1}% instead of {pct:.0}%)",
+            s.scenario.trials,
+            100.0 * worst_coverage(s)
+        ));
+    }
+    format!("{}: {}.", design.name, parts.join("; "))
+}
+
+fn half_width(s: &ScenarioSummary, q: Quantity) -> String {
+    s.quantity(q)
+        .map(|x| format!("{:.2}", x.mean_width.value / 2.0))
+        .unwrap_or_else(|| "–".into())
+}
+
+fn undercovers(s: &ScenarioSummary, level: f64) -> bool {
+    s.quantities.iter().any(|q| q.coverage.high < level)
+}
+
+fn worst_coverage(s: &ScenarioSummary) -> f64 {
+    s.quantities
+        .iter()
+        .map(|q| q.coverage.value)
+        .fold(f64::INFINITY, f64::min)
+}

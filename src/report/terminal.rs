@@ -1,0 +1,157 @@
+//! The terminal report: one block per design with a precision table, a trade-off table
+//! and a one-line reading.
+
+use super::CAUTION;
+use super::format::{figure, number, percent, share};
+use super::reading::reading;
+use super::style::{new_table, right_align};
+use crate::design::{Design, Response};
+use crate::engine::{Method, ScenarioSummary};
+use crate::plan::Plan;
+use comfy_table::Table;
+use std::fmt::Write;
+
+/// The whole report as text.
+pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> String {
+    let mut out = String::new();
+    header(&mut out, plan, summaries);
+    for (d, design) in plan.designs.iter().enumerate() {
+        let rows: Vec<&ScenarioSummary> = summaries
+            .iter()
+            .filter(|s| s.scenario.design == d)
+            .collect();
+        design_block(&mut out, plan, design, &rows);
+    }
+    let _ = writeln!(out, "Caution: {CAUTION}");
+    out
+}
+
+fn header(out: &mut String, plan: &Plan, summaries: &[ScenarioSummary]) {
+    let o = &plan.observer;
+    let r = o.rates();
+    let lean = if o.criterion > 0.0 {
+        "conservative"
+    } else if o.criterion < 0.0 {
+        "liberal"
+    } else {
+        "unbiased"
+    };
+    let _ = writeln!(out, "vigil — {}", plan.study.title);
+    let _ = writeln!(
+        out,
+        "Hypothesised observer: d′ = {:.2}, c = {:+.2} ({lean}), σ = {}; yes/no rates H = {:.3}, F = {:.3}",
+        o.d_prime, o.criterion, o.sigma, r.hit, r.false_alarm
+    );
+    let exact = summaries.iter().any(|s| s.method == Method::Exact);
+    let how = if exact {
+        "exact enumeration of every outcome (no Monte Carlo error)".to_string()
+    } else {
+        format!(
+            "{} simulated experiments per row, seed {}",
+            plan.study.experiments, plan.study.seed
+        )
+    };
+    let _ = writeln!(
+        out,
+        "{how}; {:.0}% Wald intervals; rates of 0 or 1: {} correction",
+        100.0 * plan.study.confidence,
+        plan.study.rate_correction.name()
+    );
+    let _ = writeln!(
+        out,
+        "Figures are means over datasets ± their Monte Carlo SE; shares carry a 95% Wilson interval."
+    );
+    let _ = writeln!(out);
+}
+
+fn design_block(out: &mut String, plan: &Plan, design: &Design, rows: &[&ScenarioSummary]) {
+    let detail = match &design.response {
+        Response::YesNo => "yes/no".to_string(),
+        Response::Rating(s) => format!(
+            "{}-category rating, boundary at criterion {}{}",
+            s.categories,
+            s.boundary,
+            if s.fix_sigma { ", σ fixed at 1" } else { "" }
+        ),
+    };
+    let _ = writeln!(
+        out,
+        "■ {}  ({detail}; stimulus present on {:.0}% of trials)",
+        design.name,
+        100.0 * design.presence
+    );
+    let _ = writeln!(out, "{}", precision_table(rows, plan.study.confidence));
+    let _ = writeln!(out, "{}", tradeoff_table(rows));
+    let _ = writeln!(
+        out,
+        "Reading: {}",
+        reading(design, rows, plan.study.confidence)
+    );
+    let _ = writeln!(out);
+}
+
+fn precision_table(rows: &[&ScenarioSummary], level: f64) -> Table {
+    let cover = format!("{:.0}% coverage", 100.0 * level);
+    let mut t = new_table(vec![
+        "trials",
+        "present/absent",
+        "",
+        "truth",
+        "mean",
+        "bias",
+        "SD",
+        "RMSE",
+        "mean SE",
+        &cover,
+        "width",
+    ]);
+    for s in rows {
+        for (i, q) in s.quantities.iter().enumerate() {
+            let first = i == 0;
+            t.add_row(vec![
+                if first {
+                    s.scenario.trials.to_string()
+                } else {
+                    String::new()
+                },
+                if first {
+                    format!("{}/{}", s.scenario.split.present, s.scenario.split.absent)
+                } else {
+                    String::new()
+                },
+                q.quantity.label().to_string(),
+                number(q.truth, 3),
+                figure(&q.mean, 3),
+                figure(&q.bias, 3),
+                figure(&q.sd, 3),
+                figure(&q.rmse, 3),
+                figure(&q.mean_se, 3),
+                share(&q.coverage),
+                figure(&q.mean_width, 3),
+            ]);
+        }
+    }
+    right_align(&mut t, 0..2);
+    t
+}
+
+fn tradeoff_table(rows: &[&ScenarioSummary]) -> Table {
+    let mut t = new_table(vec![
+        "trials",
+        "r(d̂′, ĉ)",
+        "rate of 0 or 1",
+        "left out: degenerate",
+        "left out: not converged",
+    ]);
+    for s in rows {
+        t.add_row(vec![
+            s.scenario.trials.to_string(),
+            figure(&s.correlation, 3),
+            percent(s.datasets.extreme.value),
+            percent(s.datasets.degenerate.value),
+            percent(s.datasets.not_converged.value),
+        ]);
+    }
+    right_align(&mut t, 0..1);
+    t
+}
