@@ -2,7 +2,6 @@
 //!
 //! Printing stays out: progress goes to a callback the command line turns into a bar.
 
-pub mod moments;
 pub mod parallel;
 pub mod summary;
 pub mod tally;

@@ -175,6 +175,17 @@ fn share(x: f64, n: f64, exact: bool) -> Share {
             high: value,
         };
     }
-    let (low, high) = wilson_interval(x, n, MC_LEVEL);
-    Share { value, low, high }
+    // Monte Carlo weights are whole counts.
+    match wilson_interval(x.round() as u64, n.round() as u64, MC_LEVEL) {
+        Ok(i) => Share {
+            value,
+            low: i.lower,
+            high: i.upper,
+        },
+        Err(_) => Share {
+            value,
+            low: f64::NAN,
+            high: f64::NAN,
+        },
+    }
 }

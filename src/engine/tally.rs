@@ -1,6 +1,6 @@
 //! Streaming tallies of fitted estimates: memory is fixed, whatever the replicate count.
 
-use super::moments::{CoMoments, Moments};
+use crate::infer::{CoMoments, Moments};
 use serde::Serialize;
 
 /// A quantity the report summarises.

@@ -132,6 +132,15 @@ impl CoMoments {
     }
 }
 
+impl FromIterator<f64> for Moments {
+    /// Unit-weight moments of a sample.
+    fn from_iter<I: IntoIterator<Item = f64>>(iter: I) -> Self {
+        let mut m = Moments::default();
+        iter.into_iter().for_each(|x| m.push(x, 1.0));
+        m
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -1,0 +1,165 @@
+//! Every kind of bad plan: exit code 2, one message naming file, line and key, no panic,
+//! and no output file written.
+
+mod common;
+
+use common::{plan_text, stderr, vigil};
+
+/// Writes `text` as bad.toml, runs `vigil run bad.toml --csv out.csv --json out.json`
+/// and checks the contract; returns the message.
+fn rejected(text: &str, line: usize, key: &str) -> String {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("bad.toml"), text).unwrap();
+    let out = vigil(
+        dir.path(),
+        &[
+            "run", "bad.toml", "--quiet", "--csv", "out.csv", "--json", "out.json",
+        ],
+    );
+    let msg = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "exit code for: {msg}");
+    assert!(!msg.contains("panicked"), "panic: {msg}");
+    assert!(msg.contains("bad.toml"), "file not named: {msg}");
+    assert!(
+        msg.contains(&format!("line {line}")),
+        "line {line} not named: {msg}"
+    );
+    assert!(
+        msg.contains(&format!("`{key}`")),
+        "key {key} not named: {msg}"
+    );
+    assert!(msg.contains("allowed:"), "no allowed values: {msg}");
+    let left: Vec<_> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name())
+        .collect();
+    assert_eq!(left.len(), 1, "files left behind: {left:?}");
+    msg
+}
+
+fn example() -> String {
+    plan_text("playback-yes-no.toml")
+}
+
+fn line_of(text: &str, needle: &str) -> usize {
+    text.lines()
+        .position(|l| l.starts_with(needle))
+        .expect("needle in plan")
+        + 1
+}
+
+fn replace_first(text: &str, from: &str, to: &str) -> String {
+    text.replacen(from, to, 1)
+}
+
+#[test]
+fn unknown_key_suggests_the_nearest() {
+    let text = replace_first(&example(), "trials = [20", "trails = [20");
+    let msg = rejected(&text, line_of(&text, "trails"), "design[1].trails");
+    assert!(msg.contains("did you mean `trials`"), "{msg}");
+}
+
+#[test]
+fn unknown_table_suggests_the_nearest() {
+    let text = example().replace("[observer]", "[obsrver]");
+    let msg = rejected(&text, line_of(&text, "[obsrver]"), "obsrver");
+    assert!(msg.contains("did you mean `observer`"), "{msg}");
+}
+
+#[test]
+fn missing_key_names_its_table() {
+    let text = example().replace("seed = 20261201\n", "");
+    let msg = rejected(&text, line_of(&text, "[study]"), "study.seed");
+    assert!(msg.contains("missing"), "{msg}");
+}
+
+#[test]
+fn wrong_type_says_what_was_found() {
+    let text = example().replace("experiments = 2000", "experiments = \"many\"");
+    let msg = rejected(&text, line_of(&text, "experiments"), "study.experiments");
+    assert!(msg.contains("whole number"), "{msg}");
+}
+
+#[test]
+fn presence_outside_unit_interval() {
+    let text = replace_first(&example(), "presence = 0.3", "presence = 1.3");
+    rejected(
+        &text,
+        line_of(&text, "presence = 1.3"),
+        "design[1].presence",
+    );
+}
+
+#[test]
+fn split_without_present_trials() {
+    // 10% of 4 trials is 0.4, which rounds to 0 present trials.
+    let text = replace_first(&example(), "presence = 0.3", "presence = 0.1");
+    let text = replace_first(&text, "trials = [20, 40, 80, 160]", "trials = [4, 40]");
+    let msg = rejected(&text, line_of(&text, "trials = [4"), "design[1].trials");
+    assert!(msg.contains("0 present"), "{msg}");
+}
+
+#[test]
+fn non_positive_experiments() {
+    let text = example().replace("experiments = 2000", "experiments = 0");
+    rejected(&text, line_of(&text, "experiments"), "study.experiments");
+}
+
+#[test]
+fn confidence_outside_unit_interval() {
+    let text = example().replace("confidence = 0.95", "confidence = 95");
+    rejected(&text, line_of(&text, "confidence"), "study.confidence");
+}
+
+#[test]
+fn negative_d_prime() {
+    let text = example().replace("d_prime = 1.5", "d_prime = -0.5");
+    rejected(&text, line_of(&text, "d_prime"), "observer.d_prime");
+}
+
+#[test]
+fn unknown_correction_lists_the_choices() {
+    let text = example().replace(
+        "rate_correction = \"log-linear\"",
+        "rate_correction = \"loglin\"",
+    );
+    let msg = rejected(
+        &text,
+        line_of(&text, "rate_correction"),
+        "study.rate_correction",
+    );
+    assert!(msg.contains("half-n"), "{msg}");
+}
+
+#[test]
+fn broken_toml_is_located() {
+    let text = example().replace("confidence = 0.95", "confidence = [0.95");
+    let msg = stderr(&{
+        let dir = tempfile::tempdir().unwrap();
+        std::fs::write(dir.path().join("bad.toml"), &text).unwrap();
+        vigil(dir.path(), &["check", "bad.toml"])
+    });
+    assert!(msg.contains("bad.toml, line"), "{msg}");
+}
+
+#[test]
+fn unwritable_output_fails_before_simulating() {
+    let dir = tempfile::tempdir().unwrap();
+    let plan = common::example_plan();
+    let out = vigil(
+        dir.path(),
+        &[
+            "run",
+            plan.to_str().unwrap(),
+            "--quiet",
+            "--csv",
+            "no/such/folder/out.csv",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        stderr(&out).contains("cannot write output"),
+        "{}",
+        stderr(&out)
+    );
+}
