@@ -43,12 +43,17 @@ impl ZTable {
 
 fn z_entry(x: u32, n: u32, correction: RateCorrection) -> Option<ZEntry> {
     let rate = correction.rate(x, n)?;
-    let z = normal::z(rate)?;
-    let phi = normal::pdf(z);
     Some(ZEntry {
-        z,
-        var: rate * (1.0 - rate) / (f64::from(n) * phi * phi),
+        z: normal::z(rate)?,
+        var: z_variance(rate, f64::from(n))?,
     })
+}
+
+/// Gourevitch & Galanter (1967) asymptotic variance of z(p̂) for a rate `p` estimated from
+/// `n` trials: p(1 − p)/(n φ(z(p))²); `None` unless 0 < p < 1.
+pub fn z_variance(p: f64, n: f64) -> Option<f64> {
+    let phi = normal::pdf(normal::z(p)?);
+    Some(p * (1.0 - p) / (n * phi * phi))
 }
 
 /// One yes/no fit: estimates and their asymptotic standard errors.

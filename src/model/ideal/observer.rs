@@ -330,21 +330,4 @@ mod tests {
         let obs = observer(1.0, 0.5, [1.0, 1.0, 1.0, 1.0]);
         assert_eq!(obs.outcome(-60.0).unwrap().false_alarm_to_miss_ratio, None);
     }
-
-    /// Golden file written by the SciPy helper (not yet in the project). Path relative
-    /// to the crate root (`CARGO_MANIFEST_DIR`).
-    const GOLDEN_IDEAL_OBSERVER: &str = "tests/golden/ideal_observer.json";
-
-    // TODO(lead): wire this test once tests/golden/ideal_observer.json exists. It needs
-    // serde_json as a dev-dependency and the file's schema: for each record, build an
-    // `IdealObserver` from (d′, p, V_H, C_M, V_CR, C_FA) and compare β_opt, c_opt, H, F
-    // (and expected payoff if present) to 1e-9.
-    #[test]
-    #[ignore = "TODO(lead): golden file tests/golden/ideal_observer.json not generated yet"]
-    fn matches_scipy_golden_file() {
-        let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join(GOLDEN_IDEAL_OBSERVER);
-        let text = std::fs::read_to_string(&path).expect("golden file present");
-        assert!(!text.is_empty());
-        todo!("parse {} and compare each record to 1e-9", path.display());
-    }
 }
