@@ -22,6 +22,7 @@ fn one_core(c: &mut Criterion) {
         d_prime: 1.5,
         criterion: 0.3,
         sigma: 1.0,
+        lapse: None,
     };
     let mut group = c.benchmark_group("yes/no datasets, one core");
     group.throughput(Throughput::Elements(REPLICATES));

@@ -122,6 +122,7 @@ fn exact_enumeration_matches_scipy() {
             d_prime: m.d_prime,
             criterion: m.criterion,
             sigma: 1.0,
+            lapse: None,
         };
         let (ns, nn) = (u(&case, "n_present"), u(&case, "n_absent"));
         let kernel = YesNoKernel::new(&observer, ns, nn, rule(&case), z_critical(0.95));

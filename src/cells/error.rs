@@ -11,6 +11,9 @@ pub enum SpecError {
     #[error("the model has no conditions; give at least one")]
     NoConditions,
 
+    #[error("the hypothesised values give no valid cell probabilities: {0}")]
+    Probabilities(String),
+
     #[error("condition {index} has an empty name; every condition needs a name for the reports")]
     EmptyName { index: usize },
 

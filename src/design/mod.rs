@@ -3,6 +3,7 @@
 //! Every design is a coarsening of one count table (stimulus class × response category).
 //! A yes/no design keeps two response categories; a rating design keeps K.
 
+pub mod model;
 mod split;
 
 pub use split::{Split, split_trials};
@@ -33,23 +34,125 @@ pub enum Response {
     Rating(RatingScale),
 }
 
-/// A candidate experiment: its response record, presence rate and trial counts to scan.
+/// Which cells of the stimulus × response table are observed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum RecordKind {
+    /// Every trial's stimulus class and response: present and absent trial counts are fixed.
+    Full,
+    /// False alarms, misses and correct responses, summed over stimulus classes, among
+    /// encounters whose class is drawn at the base rate.
+    ErrorTotals,
+    /// Only how often the animal responded, among encounters drawn at the base rate.
+    ResponseTotals,
+}
+
+impl RecordKind {
+    pub const NAMES: [&'static str; 3] = ["full", "error-totals", "response-totals"];
+
+    pub fn from_name(name: &str) -> Option<Self> {
+        match name {
+            "full" => Some(Self::Full),
+            "error-totals" => Some(Self::ErrorTotals),
+            "response-totals" => Some(Self::ResponseTotals),
+            _ => None,
+        }
+    }
+}
+
+/// What the analysis knows of the base rate (share of encounters with the stimulus) in a
+/// record that does not fix present and absent trial counts.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(tag = "kind", content = "encounters", rename_all = "kebab-case")]
+pub enum BaseRate {
+    /// Known: fixed by the experimenter.
+    Known,
+    /// Estimated, helped by an independent census of this many encounters.
+    Census(u64),
+    /// Estimated from the behavioural record alone.
+    Unknown,
+}
+
+/// A parameter that linked conditions may share.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum SharedParameter {
+    DPrime,
+    Criterion,
+    Sigma,
+    Spacing,
+    BaseRate,
+}
+
+impl SharedParameter {
+    pub const NAMES: [&'static str; 5] = ["d_prime", "criterion", "sigma", "spacing", "base_rate"];
+
+    pub fn from_name(name: &str) -> Option<Self> {
+        match name {
+            "d_prime" => Some(Self::DPrime),
+            "criterion" => Some(Self::Criterion),
+            "sigma" => Some(Self::Sigma),
+            "spacing" => Some(Self::Spacing),
+            "base_rate" => Some(Self::BaseRate),
+            _ => None,
+        }
+    }
+}
+
+/// One condition (treatment) of a design, with its true parameter values.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Condition {
+    pub name: String,
+    /// Share of trials (or encounters) with the stimulus present, in (0, 1).
+    pub presence: f64,
+    pub d_prime: f64,
+    /// Criterion c at the yes/no boundary.
+    pub criterion: f64,
+}
+
+/// A candidate experiment: what it records, its conditions and the trial counts to scan.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Design {
     pub name: String,
-    /// Share of trials on which the stimulus is present, in (0, 1).
+    /// Presence rate of the first condition (the design's own for a single condition).
     pub presence: f64,
-    /// Total trials per condition to scan, increasing.
+    /// Total trials (or encounters) per condition to scan, increasing.
     pub trials: Vec<u32>,
     pub response: Response,
+    pub record: RecordKind,
+    pub base_rate: BaseRate,
+    /// At least one; a design without `[[design.condition]]` has one, named after it.
+    pub conditions: Vec<Condition>,
+    /// Parameters common to all conditions.
+    pub shared: Vec<SharedParameter>,
 }
 
 impl Design {
     /// Short label of the record kind for tables.
     pub fn record_label(&self) -> String {
-        match &self.response {
+        let response = match &self.response {
             Response::YesNo => "yes/no".to_string(),
             Response::Rating(s) => format!("{}-step rating", s.categories),
+        };
+        let base = match self.base_rate {
+            BaseRate::Known => "known base rate".to_string(),
+            BaseRate::Census(m) => format!("base rate from a census of {m}"),
+            BaseRate::Unknown => "unknown base rate".to_string(),
+        };
+        match self.record {
+            RecordKind::Full => response,
+            RecordKind::ErrorTotals => format!("error totals, {base}"),
+            RecordKind::ResponseTotals => format!("response totals, {base}"),
         }
+    }
+
+    /// Whether the closed-form or rating fast path applies: one condition, full record.
+    pub fn is_single_table(&self) -> bool {
+        self.conditions.len() == 1 && self.record == RecordKind::Full
+    }
+
+    /// Whether a parameter is shared across conditions.
+    pub fn shares(&self, p: SharedParameter) -> bool {
+        self.shared.contains(&p)
     }
 }

@@ -2,6 +2,7 @@
 //!
 //! Printing stays out: progress goes to a callback the command line turns into a bar.
 
+pub mod cells_kernel;
 pub mod parallel;
 pub mod summary;
 pub mod tally;
@@ -14,6 +15,7 @@ use crate::analytic::exact;
 use crate::design::Response;
 use crate::model::normal;
 use crate::plan::{Plan, Scenario};
+use cells_kernel::CellsKernel;
 use parallel::run_replicates;
 use thiserror::Error;
 use yesno_kernel::YesNoKernel;
@@ -37,10 +39,14 @@ pub enum RunError {
         outcomes: u64,
         max: u64,
     },
-    #[error("design \"{design}\" records a rating scale; --exact covers yes/no designs only")]
+    #[error(
+        "design \"{design}\" is not a single-condition yes/no design with a full record; --exact covers those only"
+    )]
     ExactNeedsYesNo { design: String },
     #[error("--experiments must be at least 1")]
     NoExperiments,
+    #[error("design \"{design}\": {message}")]
+    Model { design: String, message: String },
 }
 
 /// Critical value of a two-sided Wald interval at `level`: z_{1−(1−level)/2}.
@@ -64,7 +70,7 @@ pub fn preflight(plan: &Plan, options: RunOptions) -> Result<(), RunError> {
     }
     for s in plan.scenarios() {
         let design = &plan.designs[s.design];
-        if !matches!(design.response, Response::YesNo) {
+        if !matches!(design.response, Response::YesNo) || !design.is_single_table() {
             return Err(RunError::ExactNeedsYesNo {
                 design: design.name.clone(),
             });
@@ -88,11 +94,10 @@ pub fn run_plan(
     progress: &(dyn Fn(u64) + Sync),
 ) -> Result<Vec<ScenarioSummary>, RunError> {
     preflight(plan, options)?;
-    let scenarios = plan.scenarios();
-    Ok(scenarios
+    plan.scenarios()
         .iter()
         .map(|s| run_scenario(plan, s, options, progress))
-        .collect())
+        .collect()
 }
 
 /// Runs one scenario.
@@ -101,10 +106,37 @@ pub fn run_scenario(
     scenario: &Scenario,
     options: RunOptions,
     progress: &(dyn Fn(u64) + Sync),
-) -> ScenarioSummary {
+) -> Result<ScenarioSummary, RunError> {
     let design = &plan.designs[scenario.design];
     let z_crit = z_critical(plan.study.confidence);
-    match &design.response {
+    let study = &plan.study;
+    if !design.is_single_table() {
+        let kernel = CellsKernel::new(
+            design,
+            &plan.observer,
+            scenario.trials,
+            study.rate_correction,
+            z_crit,
+        )
+        .map_err(|e| RunError::Model {
+            design: design.name.clone(),
+            message: e.to_string(),
+        })?;
+        let tally = run_replicates(
+            &kernel,
+            study.seed,
+            scenario.id,
+            study.experiments,
+            progress,
+        );
+        return Ok(summary::summarise(
+            *scenario,
+            &design.name,
+            &tally,
+            Method::MonteCarlo,
+        ));
+    }
+    Ok(match &design.response {
         Response::YesNo => {
             let kernel = YesNoKernel::new(
                 &plan.observer,
@@ -133,5 +165,5 @@ pub fn run_scenario(
             &tally::EstimateTally::new(Vec::new()),
             Method::MonteCarlo,
         ),
-    }
+    })
 }

@@ -39,6 +39,8 @@ pub enum Method {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct QuantitySummary {
     pub quantity: Quantity,
+    /// Condition label for designs with several conditions.
+    pub condition: Option<String>,
     pub truth: f64,
     pub mean: Figure,
     pub bias: Figure,
@@ -70,6 +72,24 @@ pub struct ScenarioSummary {
     /// Correlation of d̂′ and ĉ across datasets.
     pub correlation: Figure,
     pub datasets: DatasetSummary,
+}
+
+impl QuantitySummary {
+    /// Label for tables, e.g. `c[low]`.
+    pub fn label(&self) -> String {
+        match &self.condition {
+            Some(c) => format!("{}[{c}]", self.quantity.label()),
+            None => self.quantity.label().to_string(),
+        }
+    }
+
+    /// Machine name for CSV, e.g. `criterion[low]`.
+    pub fn key(&self) -> String {
+        match &self.condition {
+            Some(c) => format!("{}[{c}]", self.quantity.key()),
+            None => self.quantity.key().to_string(),
+        }
+    }
 }
 
 impl ScenarioSummary {
@@ -121,6 +141,7 @@ fn quantity(q: &QuantityTally, exact: bool) -> QuantitySummary {
     let rmse_value = mse.sqrt();
     QuantitySummary {
         quantity: q.quantity,
+        condition: q.condition.clone(),
         truth: q.truth,
         bias: figure(mean.value - q.truth, mean.mc_se),
         // Normal-theory MC error of an SD: SD/√(2(n − 1)).

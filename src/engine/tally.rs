@@ -13,6 +13,7 @@ pub enum Quantity {
     Slope,
     DA,
     Az,
+    BaseRate,
 }
 
 impl Quantity {
@@ -25,6 +26,7 @@ impl Quantity {
             Self::Slope => "zROC slope",
             Self::DA => "d_a",
             Self::Az => "A_z",
+            Self::BaseRate => "π",
         }
     }
 
@@ -37,6 +39,7 @@ impl Quantity {
             Self::Slope => "zroc_slope",
             Self::DA => "d_a",
             Self::Az => "a_z",
+            Self::BaseRate => "base_rate",
         }
     }
 }
@@ -45,6 +48,9 @@ impl Quantity {
 #[derive(Debug, Clone, PartialEq)]
 pub struct QuantityTally {
     pub quantity: Quantity,
+    /// The condition this quantity belongs to, for designs with several conditions
+    /// (`None` for single-condition designs and for parameters shared by all conditions).
+    pub condition: Option<String>,
     pub truth: f64,
     /// Critical value of the Wald interval, z_{1−(1−level)/2}.
     pub z_crit: f64,
@@ -60,6 +66,7 @@ impl QuantityTally {
     pub fn new(quantity: Quantity, truth: f64, z_crit: f64) -> Self {
         Self {
             quantity,
+            condition: None,
             truth,
             z_crit,
             estimate: Moments::default(),
@@ -81,6 +88,12 @@ impl QuantityTally {
         if err.abs() <= half {
             self.covered += w;
         }
+    }
+
+    /// The same tally labelled with a condition.
+    pub fn in_condition(mut self, condition: Option<String>) -> Self {
+        self.condition = condition;
+        self
     }
 
     /// Total weight of datasets that entered this quantity.

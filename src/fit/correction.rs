@@ -55,6 +55,31 @@ impl RateCorrection {
     }
 }
 
+impl RateCorrection {
+    /// Applies the rule to one row of a count table (one stimulus class over its response
+    /// categories), in place, and says whether the row had an empty cell. With two
+    /// categories this is exactly [`RateCorrection::rate`]:
+    /// - log-linear adds ½ to every cell (the row total grows by K/2);
+    /// - half-n gives every empty cell half a count, taken from the row's largest cell, so
+    ///   the total is kept (0 → 1/(2N), N → N − ½ when K = 2);
+    /// - none leaves the row as it is.
+    pub fn apply_to_row(self, row: &mut [f64]) -> bool {
+        let empty = row.iter().filter(|&&x| x == 0.0).count();
+        match self {
+            Self::LogLinear => row.iter_mut().for_each(|x| *x += 0.5),
+            Self::HalfN if empty > 0 => {
+                let largest = (0..row.len())
+                    .max_by(|&a, &b| row[a].total_cmp(&row[b]))
+                    .unwrap_or(0);
+                row[largest] -= 0.5 * empty as f64;
+                row.iter_mut().filter(|x| **x == 0.0).for_each(|x| *x = 0.5);
+            }
+            Self::HalfN | Self::None => {}
+        }
+        empty > 0
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -80,6 +105,28 @@ mod tests {
         assert_eq!(RateCorrection::None.rate(0, 5), None);
         assert_eq!(RateCorrection::None.rate(5, 5), None);
         assert_eq!(RateCorrection::None.rate(2, 5), Some(0.4));
+    }
+
+    #[test]
+    fn row_rule_equals_rate_rule_for_two_categories() {
+        for rule in [RateCorrection::LogLinear, RateCorrection::HalfN] {
+            for (x, n) in [(0u32, 20u32), (20, 20), (7, 20)] {
+                let mut row = [f64::from(n - x), f64::from(x)];
+                rule.apply_to_row(&mut row);
+                let rate = row[1] / (row[0] + row[1]);
+                assert!(
+                    (rate - rule.rate(x, n).unwrap()).abs() < 1e-15,
+                    "{rule:?} {x}/{n}"
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn half_n_keeps_row_totals() {
+        let mut row = [0.0, 12.0, 0.0, 3.0];
+        assert!(RateCorrection::HalfN.apply_to_row(&mut row));
+        assert_eq!(row, [0.5, 11.0, 0.5, 3.0]);
     }
 
     #[test]

@@ -5,4 +5,4 @@ pub mod ideal;
 pub mod normal;
 pub mod observer;
 
-pub use observer::{Observer, Rates, YesNoMeasures};
+pub use observer::{LapseSpec, Observer, Rates, YesNoMeasures};

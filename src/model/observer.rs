@@ -16,6 +16,18 @@ pub struct Observer {
     pub criterion: f64,
     /// SD of the present-stimulus evidence; 1 for the equal-variance model.
     pub sigma: f64,
+    /// Optional lapses: trials on which the animal does not attend.
+    pub lapse: Option<LapseSpec>,
+}
+
+/// Lapses: on a share `rate` of trials the animal ignores the stimulus and responds
+/// "present" with probability `guess_yes`, so P(yes) = (1 − λ)·P_model(yes) + λ·g.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct LapseSpec {
+    /// λ in [0, 1).
+    pub rate: f64,
+    /// g in [0, 1].
+    pub guess_yes: f64,
 }
 
 /// Hit and false-alarm rates of a yes/no observer.
@@ -28,11 +40,16 @@ pub struct Rates {
 impl Observer {
     /// Expected yes/no rates with the boundary at k = c + d′/2:
     /// H = Φ((d′ − k)/σ), F = Φ(−k); with σ = 1, H = Φ(d′/2 − c), F = Φ(−d′/2 − c).
+    /// Lapses mix in the guessing rate: p = (1 − λ)·p_model + λ·g.
     pub fn rates(&self) -> Rates {
         let k = self.criterion + self.d_prime / 2.0;
-        Rates {
-            hit: normal::sf((k - self.d_prime) / self.sigma),
-            false_alarm: normal::sf(k),
+        let (hit, false_alarm) = (normal::sf((k - self.d_prime) / self.sigma), normal::sf(k));
+        match self.lapse {
+            None => Rates { hit, false_alarm },
+            Some(l) => Rates {
+                hit: (1.0 - l.rate) * hit + l.rate * l.guess_yes,
+                false_alarm: (1.0 - l.rate) * false_alarm + l.rate * l.guess_yes,
+            },
         }
     }
 }
@@ -91,10 +108,38 @@ mod tests {
             d_prime: 1.3,
             criterion: 0.4,
             sigma: 1.0,
+            lapse: None,
         };
         let r = obs.rates();
         let m = YesNoMeasures::from_rates(r.hit, r.false_alarm).unwrap();
         assert!((m.d_prime - 1.3).abs() < 1e-12);
         assert!((m.criterion - 0.4).abs() < 1e-12);
+    }
+}
+
+#[cfg(test)]
+mod lapse_tests {
+    use super::*;
+
+    // The lapse (guessing) model written out independently: a share λ of trials answered
+    // "yes" at rate g regardless of the stimulus (common practice in psychophysics, e.g.
+    // Wichmann & Hill 2001 [memory for the citation]).
+    #[test]
+    fn lapse_mixes_in_the_guessing_rate() {
+        let (d, c, lambda, g) = (1.5_f64, 0.3_f64, 0.1_f64, 0.4_f64);
+        let obs = Observer {
+            d_prime: d,
+            criterion: c,
+            sigma: 1.0,
+            lapse: Some(LapseSpec {
+                rate: lambda,
+                guess_yes: g,
+            }),
+        };
+        let r = obs.rates();
+        let h = normal::cdf(d / 2.0 - c);
+        let f = normal::cdf(-d / 2.0 - c);
+        assert!((r.hit - ((1.0 - lambda) * h + lambda * g)).abs() < 1e-15);
+        assert!((r.false_alarm - ((1.0 - lambda) * f + lambda * g)).abs() < 1e-15);
     }
 }

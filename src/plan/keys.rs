@@ -14,8 +14,25 @@ pub const TABLE_KEYS: &[(&str, &[&str])] = &[
             "rate_correction",
         ],
     ),
-    ("observer", &["d_prime", "criterion", "sigma"]),
-    ("design", &["name", "presence", "trials", "scale"]),
+    (
+        "observer",
+        &["d_prime", "criterion", "sigma", "lapse_rate", "lapse_yes"],
+    ),
+    (
+        "design",
+        &[
+            "name",
+            "presence",
+            "trials",
+            "scale",
+            "record",
+            "base_rate",
+            "census",
+            "shared",
+            "condition",
+        ],
+    ),
+    ("condition", &["name", "presence", "d_prime", "criterion"]),
     (
         "scale",
         &[
@@ -41,9 +58,30 @@ pub fn allowed(key: &str) -> &'static str {
         "rate_correction" => "\"log-linear\" (default), \"half-n\" or \"none\"",
         "d_prime" => "a number ≥ 0 (sensitivity d′)",
         "criterion" => "a number (c; positive = conservative)",
+        "lapse_rate" => {
+            "a share of trials in [0, 1) on which the animal ignores the stimulus (default 0)"
+        }
+        "lapse_yes" => "the rate in [0, 1] of \"present\" responses on lapse trials (default 0.5)",
         "sigma" => "a number > 0 (SD of present-stimulus evidence; default 1)",
         "name" => "non-empty text in quotes, unique among designs",
-        "presence" => "a share strictly between 0 and 1 (e.g. 0.3 = stimulus on 30% of trials)",
+        "presence" => {
+            "a share strictly between 0 and 1 (e.g. 0.3 = stimulus on 30% of trials); required on the design or on every condition"
+        }
+        "record" => {
+            "\"full\" (default: every trial's stimulus and response), \"error-totals\" (false alarms, misses and correct responses summed over stimulus classes) or \"response-totals\" (only how often the animal responded)"
+        }
+        "base_rate" => {
+            "for error-totals and response-totals records: \"known\" (default), \"census\" (estimated, helped by an independent census) or \"unknown\""
+        }
+        "census" => {
+            "with base_rate = \"census\": the number of encounters in the census, a whole number ≥ 1"
+        }
+        "shared" => {
+            "a list of parameters common to all conditions, from \"d_prime\", \"criterion\", \"sigma\", \"spacing\", \"base_rate\" (default with conditions: [\"d_prime\", \"sigma\", \"spacing\"] where they exist)"
+        }
+        "condition" => {
+            "[[design.condition]] tables, each with a unique name and optionally presence, d_prime and criterion"
+        }
         "trials" => "a list of whole numbers ≥ 2 per condition, e.g. [20, 40, 80]",
         "scale" => {
             "an inline table, e.g. scale = { categories = 4, boundary = 2, absent_shares = [0.4, 0.3, 0.2, 0.1] }"

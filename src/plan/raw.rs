@@ -34,6 +34,8 @@ pub struct RawObserver {
     pub d_prime: Spanned<f64>,
     pub criterion: Spanned<f64>,
     pub sigma: Option<Spanned<f64>>,
+    pub lapse_rate: Option<Spanned<f64>>,
+    pub lapse_yes: Option<Spanned<f64>>,
 }
 
 /// One `[[design]]`: a candidate experiment and the trial counts to scan.
@@ -41,9 +43,26 @@ pub struct RawObserver {
 #[serde(deny_unknown_fields)]
 pub struct RawDesign {
     pub name: Spanned<String>,
-    pub presence: Spanned<f64>,
+    pub presence: Option<Spanned<f64>>,
     pub trials: Spanned<Vec<Spanned<i64>>>,
     pub scale: Option<Spanned<RawScale>>,
+    pub record: Option<Spanned<String>>,
+    pub base_rate: Option<Spanned<String>>,
+    pub census: Option<Spanned<i64>>,
+    pub shared: Option<Spanned<Vec<Spanned<String>>>>,
+    #[serde(rename = "condition")]
+    pub conditions: Option<Spanned<Vec<RawCondition>>>,
+}
+
+/// One `[[design.condition]]`: a treatment within a design (e.g. a presence rate or a payoff
+/// regime); parameters not listed in the design's `shared` are estimated per condition.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawCondition {
+    pub name: Spanned<String>,
+    pub presence: Option<Spanned<f64>>,
+    pub d_prime: Option<Spanned<f64>>,
+    pub criterion: Option<Spanned<f64>>,
 }
 
 /// `scale = { … }` on a design: an ordered response scale with more than two steps.

@@ -4,9 +4,11 @@ use super::keys::allowed;
 use super::locate::{key_path_of, line_of};
 use super::raw::{RawDesign, RawPlan, RawScale};
 use super::{Plan, PlanError, Study};
-use crate::design::{Design, RatingScale, Response, split_trials};
+use crate::design::{
+    BaseRate, Condition, Design, RatingScale, RecordKind, Response, SharedParameter, split_trials,
+};
 use crate::fit::correction::RateCorrection;
-use crate::model::{Observer, normal};
+use crate::model::{LapseSpec, Observer, normal};
 use std::path::Path;
 use toml::Spanned;
 
@@ -134,10 +136,39 @@ fn observer(ctx: &Ctx, raw: &RawPlan) -> Result<Observer, PlanError> {
         Some(s) if s.get_ref().is_finite() && *s.get_ref() > 0.0 => *s.get_ref(),
         Some(s) => return Err(ctx.at(s, "sigma", format!("{} is not a positive SD", s.get_ref()))),
     };
+    let lapse = match (&o.lapse_rate, &o.lapse_yes) {
+        (None, None) => None,
+        (None, Some(g)) => {
+            return Err(ctx.at(
+                g,
+                "lapse_rate",
+                "lapse_yes is given without lapse_rate".into(),
+            ));
+        }
+        (Some(l), g) => {
+            let rate = *l.get_ref();
+            if !(rate.is_finite() && (0.0..1.0).contains(&rate)) {
+                return Err(ctx.at(l, "lapse_rate", format!("{rate} is outside [0, 1)")));
+            }
+            let guess_yes = match g {
+                None => 0.5,
+                Some(g) if (0.0..=1.0).contains(g.get_ref()) => *g.get_ref(),
+                Some(g) => {
+                    return Err(ctx.at(
+                        g,
+                        "lapse_yes",
+                        format!("{} is outside [0, 1]", g.get_ref()),
+                    ));
+                }
+            };
+            (rate > 0.0).then_some(LapseSpec { rate, guess_yes })
+        }
+    };
     Ok(Observer {
         d_prime: d,
         criterion: c,
         sigma,
+        lapse,
     })
 }
 
@@ -146,14 +177,211 @@ fn design(ctx: &Ctx, d: &RawDesign, observer: &Observer) -> Result<Design, PlanE
     if name.is_empty() {
         return Err(ctx.at(&d.name, "name", "the design name is empty".into()));
     }
-    let presence = *d.presence.get_ref();
-    if !open_unit(presence) {
+    let response = match &d.scale {
+        None => Response::YesNo,
+        Some(s) => Response::Rating(scale(ctx, s, observer)?),
+    };
+    let record = record(ctx, d, &response)?;
+    let base_rate = base_rate(ctx, d, record)?;
+    let default_presence = match &d.presence {
+        Some(p) => Some(presence(ctx, p)?),
+        None => None,
+    };
+    let boundary_criterion = match &response {
+        Response::YesNo => observer.criterion,
+        Response::Rating(s) => s.criteria[s.boundary - 1],
+    };
+    let conditions = conditions(
+        ctx,
+        d,
+        &name,
+        default_presence,
+        observer.d_prime,
+        boundary_criterion,
+    )?;
+    let trials = trials(ctx, d, record, &conditions)?;
+    let shared = shared(ctx, d, &response, base_rate, conditions.len())?;
+    Ok(Design {
+        name,
+        presence: conditions[0].presence,
+        trials,
+        response,
+        record,
+        base_rate,
+        conditions,
+        shared,
+    })
+}
+
+fn presence(ctx: &Ctx, p: &Spanned<f64>) -> Result<f64, PlanError> {
+    let v = *p.get_ref();
+    if open_unit(v) {
+        Ok(v)
+    } else {
+        Err(ctx.at(p, "presence", format!("{v} is outside (0, 1)")))
+    }
+}
+
+fn record(ctx: &Ctx, d: &RawDesign, response: &Response) -> Result<RecordKind, PlanError> {
+    let Some(r) = &d.record else {
+        return Ok(RecordKind::Full);
+    };
+    let kind = RecordKind::from_name(r.get_ref()).ok_or_else(|| {
+        ctx.at(
+            r,
+            "record",
+            format!("\"{}\" is not a known record", r.get_ref()),
+        )
+    })?;
+    if kind != RecordKind::Full && matches!(response, Response::Rating(_)) {
         return Err(ctx.at(
-            &d.presence,
-            "presence",
-            format!("{presence} is outside (0, 1)"),
+            r,
+            "record",
+            format!(
+                "a \"{}\" record keeps yes/no responses only; it cannot be combined with a rating scale",
+                r.get_ref()
+            ),
         ));
     }
+    Ok(kind)
+}
+
+fn base_rate(ctx: &Ctx, d: &RawDesign, record: RecordKind) -> Result<BaseRate, PlanError> {
+    let census = match &d.census {
+        Some(c) if *c.get_ref() >= 1 => Some((c, *c.get_ref() as u64)),
+        Some(c) => {
+            return Err(ctx.at(
+                c,
+                "census",
+                format!("a census of {} encounters is not ≥ 1", c.get_ref()),
+            ));
+        }
+        None => None,
+    };
+    let Some(b) = &d.base_rate else {
+        if let Some((c, _)) = census {
+            return Err(ctx.at(
+                c,
+                "census",
+                "census is given but base_rate is not \"census\"".into(),
+            ));
+        }
+        return Ok(BaseRate::Known);
+    };
+    if record == RecordKind::Full {
+        return Err(ctx.at(
+            b,
+            "base_rate",
+            "a full record fixes the present and absent trial counts, so it has no base rate to know or estimate"
+                .into(),
+        ));
+    }
+    match (b.get_ref().as_str(), census) {
+        ("known", None) => Ok(BaseRate::Known),
+        ("unknown", None) => Ok(BaseRate::Unknown),
+        ("census", Some((_, m))) => Ok(BaseRate::Census(m)),
+        ("census", None) => Err(ctx.at(
+            b,
+            "census",
+            "base_rate = \"census\" needs census = <encounters>".into(),
+        )),
+        ("known" | "unknown", Some((c, _))) => Err(ctx.at(
+            c,
+            "census",
+            "census is given but base_rate is not \"census\"".into(),
+        )),
+        (other, _) => Err(ctx.at(
+            b,
+            "base_rate",
+            format!("\"{other}\" is not a known base-rate option"),
+        )),
+    }
+}
+
+fn conditions(
+    ctx: &Ctx,
+    d: &RawDesign,
+    design_name: &str,
+    default_presence: Option<f64>,
+    d_prime: f64,
+    criterion: f64,
+) -> Result<Vec<Condition>, PlanError> {
+    let Some(list) = &d.conditions else {
+        let presence = default_presence.ok_or_else(|| {
+            ctx.at(
+                &d.name,
+                "presence",
+                format!("design \"{design_name}\" gives no presence rate"),
+            )
+        })?;
+        return Ok(vec![Condition {
+            name: design_name.to_string(),
+            presence,
+            d_prime,
+            criterion,
+        }]);
+    };
+    if list.get_ref().is_empty() {
+        return Err(ctx.at(list, "condition", "the list of conditions is empty".into()));
+    }
+    let mut out: Vec<Condition> = Vec::new();
+    for c in list.get_ref() {
+        let name = c.name.get_ref().trim().to_string();
+        if name.is_empty() || out.iter().any(|x| x.name == name) {
+            return Err(ctx.at(
+                &c.name,
+                "name",
+                format!("condition name \"{name}\" is empty or used twice"),
+            ));
+        }
+        let presence = match &c.presence {
+            Some(p) => presence(ctx, p)?,
+            None => default_presence.ok_or_else(|| {
+                ctx.at(
+                    &c.name,
+                    "presence",
+                    format!("condition \"{name}\" has no presence rate and the design gives none"),
+                )
+            })?,
+        };
+        let dp = match &c.d_prime {
+            Some(v) if v.get_ref().is_finite() && *v.get_ref() >= 0.0 => *v.get_ref(),
+            Some(v) => {
+                return Err(ctx.at(
+                    v,
+                    "d_prime",
+                    format!("{} is not a sensitivity ≥ 0", v.get_ref()),
+                ));
+            }
+            None => d_prime,
+        };
+        let crit = match &c.criterion {
+            Some(v) if v.get_ref().is_finite() => *v.get_ref(),
+            Some(v) => {
+                return Err(ctx.at(
+                    v,
+                    "criterion",
+                    format!("{} is not a finite number", v.get_ref()),
+                ));
+            }
+            None => criterion,
+        };
+        out.push(Condition {
+            name,
+            presence,
+            d_prime: dp,
+            criterion: crit,
+        });
+    }
+    Ok(out)
+}
+
+fn trials(
+    ctx: &Ctx,
+    d: &RawDesign,
+    record: RecordKind,
+    conditions: &[Condition],
+) -> Result<Vec<u32>, PlanError> {
     if d.trials.get_ref().is_empty() {
         return Err(ctx.at(
             &d.trials,
@@ -171,16 +399,20 @@ fn design(ctx: &Ctx, d: &RawDesign, observer: &Observer) -> Result<Design, PlanE
                 format!("{n} trials is outside 2 to {MAX_TRIALS}"),
             ));
         }
-        let split = split_trials(n as u32, presence);
-        if split.present == 0 || split.absent == 0 {
-            return Err(ctx.at(
-                t,
-                "trials",
-                format!(
-                    "{n} trials at presence {presence} leaves {} present and {} absent trials; both must be at least 1",
-                    split.present, split.absent
-                ),
-            ));
+        if record == RecordKind::Full {
+            for c in conditions {
+                let split = split_trials(n as u32, c.presence);
+                if split.present == 0 || split.absent == 0 {
+                    return Err(ctx.at(
+                        t,
+                        "trials",
+                        format!(
+                            "{n} trials at presence {} (condition \"{}\") leaves {} present and {} absent trials; both must be at least 1",
+                            c.presence, c.name, split.present, split.absent
+                        ),
+                    ));
+                }
+            }
         }
         if trials.contains(&(n as u32)) {
             return Err(ctx.at(t, "trials", format!("{n} is listed twice")));
@@ -188,16 +420,76 @@ fn design(ctx: &Ctx, d: &RawDesign, observer: &Observer) -> Result<Design, PlanE
         trials.push(n as u32);
     }
     trials.sort_unstable();
-    let response = match &d.scale {
-        None => Response::YesNo,
-        Some(s) => Response::Rating(scale(ctx, s, observer)?),
+    Ok(trials)
+}
+
+fn shared(
+    ctx: &Ctx,
+    d: &RawDesign,
+    response: &Response,
+    base_rate: BaseRate,
+    conditions: usize,
+) -> Result<Vec<SharedParameter>, PlanError> {
+    let rating = match response {
+        Response::YesNo => None,
+        Response::Rating(s) => Some(s),
     };
-    Ok(Design {
-        name,
-        presence,
-        trials,
-        response,
-    })
+    let has_sigma = rating.is_some_and(|s| !s.fix_sigma);
+    let has_spacing = rating.is_some_and(|s| s.categories >= 3);
+    let has_base_rate = base_rate != BaseRate::Known;
+    let Some(list) = &d.shared else {
+        // Default: one animal, one sensitivity and one scale shape; criteria (and base
+        // rates) free per condition.
+        let mut out = vec![SharedParameter::DPrime];
+        if has_sigma {
+            out.push(SharedParameter::Sigma);
+        }
+        if has_spacing {
+            out.push(SharedParameter::Spacing);
+        }
+        return Ok(if conditions > 1 { out } else { Vec::new() });
+    };
+    if conditions < 2 {
+        return Err(ctx.at(
+            list,
+            "shared",
+            "sharing needs two or more [[design.condition]] tables".into(),
+        ));
+    }
+    let mut out = Vec::new();
+    for item in list.get_ref() {
+        let p = SharedParameter::from_name(item.get_ref()).ok_or_else(|| {
+            ctx.at(
+                item,
+                "shared",
+                format!(
+                    "\"{}\" is not a parameter that conditions can share",
+                    item.get_ref()
+                ),
+            )
+        })?;
+        let missing = match p {
+            SharedParameter::Sigma if !has_sigma => Some("σ is fixed at 1 in this design"),
+            SharedParameter::Spacing if !has_spacing => {
+                Some("the design has no criteria besides the boundary")
+            }
+            SharedParameter::BaseRate if !has_base_rate => {
+                Some("the base rate is known (or fixed by a full record), not estimated")
+            }
+            _ => None,
+        };
+        if let Some(why) = missing {
+            return Err(ctx.at(
+                item,
+                "shared",
+                format!("\"{}\" cannot be shared: {why}", item.get_ref()),
+            ));
+        }
+        if !out.contains(&p) {
+            out.push(p);
+        }
+    }
+    Ok(out)
 }
 
 fn scale(

@@ -54,7 +54,7 @@ pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> Result<Vec<u8>, csv
                 s.scenario.split.present.to_string(),
                 s.scenario.split.absent.to_string(),
                 method.to_string(),
-                q.quantity.key().to_string(),
+                q.key(),
                 num(q.truth),
                 num(q.mean.value),
                 num(q.mean.mc_se),

@@ -119,7 +119,7 @@ fn precision_table(rows: &[&ScenarioSummary], level: f64) -> Table {
                 } else {
                     String::new()
                 },
-                q.quantity.label().to_string(),
+                q.label(),
                 number(q.truth, 3),
                 figure(&q.mean, 3),
                 figure(&q.bias, 3),

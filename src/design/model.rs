@@ -1,0 +1,126 @@
+//! A design at one trial count, as the general observation model of `cells`.
+//!
+//! This is the one place where plan-level designs meet the model's condition specs: the
+//! fits, the expected information and the simulation of coarse records all start here.
+
+use super::{BaseRate, Design, RecordKind, Response, SharedParameter, split_trials};
+use crate::cells::error::SpecError;
+use crate::cells::observation_model::ObservationModel;
+use crate::cells::spec::{
+    BaseRateKnowledge, BaseRateLink, ConditionSpec, Lapse, NaturalValues, Record, Role, Roles,
+};
+use crate::model::{LapseSpec, Observer};
+
+/// The observation model of `design` with `trials` trials (or encounters) per condition.
+pub fn observation_model(
+    design: &Design,
+    observer: &Observer,
+    trials: u32,
+) -> Result<ObservationModel, SpecError> {
+    ObservationModel::new(condition_specs(design, observer, trials))
+}
+
+/// One condition spec per condition of the design.
+pub fn condition_specs(design: &Design, observer: &Observer, trials: u32) -> Vec<ConditionSpec> {
+    let (categories, boundary, fix_sigma, offsets) = match &design.response {
+        Response::YesNo => (2, 1, true, Vec::new()),
+        Response::Rating(s) => {
+            let at = s.criteria[s.boundary - 1];
+            let offsets: Vec<f64> = s.criteria.iter().map(|c| c - at).collect();
+            (s.categories, s.boundary, s.fix_sigma, offsets)
+        }
+    };
+    let many = design.conditions.len() > 1;
+    let role = |p: SharedParameter| {
+        if many && design.shares(p) {
+            Role::Shared
+        } else {
+            Role::Free
+        }
+    };
+    let roles = Roles {
+        d_prime: role(SharedParameter::DPrime),
+        criterion: role(SharedParameter::Criterion),
+        sigma: if categories == 2 || fix_sigma {
+            Role::Fixed
+        } else {
+            role(SharedParameter::Sigma)
+        },
+        gaps: if categories <= 2 {
+            Role::Free
+        } else {
+            role(SharedParameter::Spacing)
+        },
+        base_rate: if many && design.shares(SharedParameter::BaseRate) {
+            BaseRateLink::Shared
+        } else {
+            BaseRateLink::PerCondition
+        },
+    };
+    let knowledge = match design.base_rate {
+        BaseRate::Known => BaseRateKnowledge::Known,
+        BaseRate::Census(m) => BaseRateKnowledge::Census(m),
+        BaseRate::Unknown => BaseRateKnowledge::Unknown,
+    };
+    design
+        .conditions
+        .iter()
+        .map(|c| {
+            let record = match design.record {
+                RecordKind::Full => {
+                    let s = split_trials(trials, c.presence);
+                    Record::Full {
+                        present: u64::from(s.present),
+                        absent: u64::from(s.absent),
+                    }
+                }
+                RecordKind::ErrorTotals => Record::ErrorTotals {
+                    encounters: u64::from(trials),
+                    base_rate: knowledge,
+                },
+                RecordKind::ResponseTotals => Record::ResponseTotals {
+                    encounters: u64::from(trials),
+                    base_rate: knowledge,
+                },
+            };
+            // The whole scale moves with the condition's criterion; its spacing is kept.
+            let gaps = offsets.windows(2).map(|w| w[1] - w[0]).collect();
+            ConditionSpec {
+                name: c.name.clone(),
+                categories,
+                boundary,
+                record,
+                values: NaturalValues {
+                    d_prime: c.d_prime,
+                    criterion: c.criterion,
+                    sigma: if fix_sigma { 1.0 } else { observer.sigma },
+                    gaps,
+                    base_rate: c.presence,
+                },
+                roles,
+                lapse: observer.lapse.map(|l| lapse(l, categories, boundary)),
+            }
+        })
+        .collect()
+}
+
+/// On a lapse trial the animal ignores the evidence and responds "present" with
+/// probability g: spread evenly over the categories at or above the boundary, and 1 − g
+/// evenly over those below it. With K = 2 this is the usual guessing model.
+fn lapse(l: LapseSpec, categories: usize, boundary: usize) -> Lapse {
+    let above = (categories - boundary) as f64;
+    let below = boundary as f64;
+    let guess = (0..categories)
+        .map(|m| {
+            if m >= boundary {
+                l.guess_yes / above
+            } else {
+                (1.0 - l.guess_yes) / below
+            }
+        })
+        .collect();
+    Lapse {
+        rate: l.rate,
+        guess,
+    }
+}
