@@ -9,6 +9,7 @@
 
 pub mod analytic;
 pub mod app;
+pub mod app_explore;
 pub mod cells;
 pub mod design;
 pub mod engine;

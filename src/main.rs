@@ -40,11 +40,42 @@ enum Command {
         #[arg(long, short)]
         quiet: bool,
     },
+    /// Expected information over a fine grid of trial counts: asymptotic SEs, the d′–c
+    /// correlation and whether each design can tell bias from sensitivity, without simulating.
+    Explore {
+        /// The plan file (TOML).
+        plan: PathBuf,
+        /// Smallest trial count of the grid (default: each design's smallest listed count).
+        #[arg(long, value_name = "N")]
+        from: Option<u32>,
+        /// Largest trial count of the grid (default: 4 × each design's largest listed count).
+        #[arg(long, value_name = "N")]
+        to: Option<u32>,
+        /// Log-spaced trial counts per design (default 40).
+        #[arg(long, value_name = "N")]
+        points: Option<usize>,
+        /// Also write the results as JSON.
+        #[arg(long, value_name = "FILE")]
+        json: Option<PathBuf>,
+    },
 }
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
+        Command::Explore {
+            plan,
+            from,
+            to,
+            points,
+            json,
+        } => vigil::app_explore::explore(&vigil::app_explore::ExploreRequest {
+            plan,
+            from,
+            to,
+            points,
+            json,
+        }),
         Command::Check { plan } => app::check(&plan),
         Command::Run {
             plan,

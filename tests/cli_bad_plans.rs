@@ -163,3 +163,101 @@ fn unwritable_output_fails_before_simulating() {
         stderr(&out)
     );
 }
+
+fn graded() -> String {
+    plan_text("graded-alarm-response.toml")
+}
+
+#[test]
+fn rating_criteria_not_increasing() {
+    let text = graded().replace(
+        "absent_shares = [0.45, 0.352, 0.148, 0.05]",
+        "criteria = [-0.5, 0.4, 0.3]",
+    );
+    let msg = rejected(&text, line_of(&text, "scale ="), "design[2].scale.criteria");
+    assert!(msg.contains("increasing"), "{msg}");
+}
+
+#[test]
+fn rating_categories_outside_range() {
+    let text = graded().replace("categories = 4", "categories = 13");
+    rejected(
+        &text,
+        line_of(&text, "scale ="),
+        "design[2].scale.categories",
+    );
+}
+
+#[test]
+fn rating_boundary_outside_range() {
+    let text = graded().replace("boundary = 2", "boundary = 4");
+    rejected(&text, line_of(&text, "scale ="), "design[2].scale.boundary");
+}
+
+#[test]
+fn rating_shares_not_summing_to_one() {
+    let text = graded().replace("[0.45, 0.352, 0.148, 0.05]", "[0.45, 0.352, 0.148, 0.5]");
+    let msg = rejected(
+        &text,
+        line_of(&text, "scale ="),
+        "design[2].scale.absent_shares",
+    );
+    assert!(msg.contains("sum"), "{msg}");
+}
+
+#[test]
+fn sigma_not_positive() {
+    let text = graded().replace("sigma = 1.25", "sigma = -1");
+    rejected(&text, line_of(&text, "sigma"), "observer.sigma");
+}
+
+fn sentinel() -> String {
+    plan_text("sentinel-error-records.toml")
+}
+
+#[test]
+fn census_not_positive() {
+    let text = sentinel().replace("census = 150", "census = 0");
+    rejected(&text, line_of(&text, "census = 0"), "design[3].census");
+}
+
+#[test]
+fn base_rate_with_a_full_record() {
+    let text = sentinel().replacen(
+        "trials = [50, 100, 200, 400]\n",
+        "trials = [50, 100, 200, 400]\nbase_rate = \"unknown\" # full\n",
+        1,
+    );
+    let msg = rejected(
+        &text,
+        line_of(&text, "base_rate = \"unknown\" # full"),
+        "design[1].base_rate",
+    );
+    assert!(msg.contains("full record"), "{msg}");
+}
+
+#[test]
+fn error_totals_with_a_rating_scale() {
+    let text = sentinel().replacen(
+        "record = \"error-totals\"\nbase_rate = \"known\"",
+        "record = \"error-totals\"\nbase_rate = \"known\"\nscale = { categories = 3, boundary = 1, criteria = [0.0, 1.0] }",
+        1,
+    );
+    let msg = rejected(
+        &text,
+        line_of(&text, "record = \"error-totals\""),
+        "design[2].record",
+    );
+    assert!(msg.contains("rating scale"), "{msg}");
+}
+
+#[test]
+fn sharing_a_parameter_the_design_lacks() {
+    let text = sentinel().replacen(
+        "base_rate = \"known\"",
+        "base_rate = \"known\"\nshared = [\"sigma\"]\n[[design.condition]]\nname = \"a\"\n[[design.condition]]\nname = \"b\"",
+        1,
+    );
+    let msg = rejected(&text, line_of(&text, "shared ="), "design[2].shared");
+    assert!(msg.contains("σ is fixed"), "{msg}");
+}

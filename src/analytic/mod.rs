@@ -2,3 +2,7 @@
 //! expected Fisher information), from the same tables as the Monte Carlo path.
 
 pub mod exact;
+pub mod information;
+pub mod scan;
+pub mod trial_grid;
+pub mod verdict;

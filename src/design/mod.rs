@@ -3,7 +3,9 @@
 //! Every design is a coarsening of one count table (stimulus class × response category).
 //! A yes/no design keeps two response categories; a rating design keeps K.
 
+pub mod goals;
 pub mod model;
+pub mod quantities;
 mod split;
 
 pub use split::{Split, split_trials};
@@ -108,6 +110,17 @@ pub struct Condition {
     pub d_prime: f64,
     /// Criterion c at the yes/no boundary.
     pub criterion: f64,
+}
+
+impl Condition {
+    /// The observer in this condition: the plan's, with the condition's d′ and criterion.
+    pub fn observer(&self, base: &crate::model::Observer) -> crate::model::Observer {
+        crate::model::Observer {
+            d_prime: self.d_prime,
+            criterion: self.criterion,
+            ..*base
+        }
+    }
 }
 
 /// A candidate experiment: what it records, its conditions and the trial counts to scan.

@@ -161,7 +161,10 @@ impl Kernel for CellsKernel {
             multinomial_into(rng, n, p, &mut draw);
             let mut row: Vec<f64> = draw.iter().map(|&x| x as f64).collect();
             if full {
-                extreme |= self.correction.apply_to_row(&mut row);
+                match self.correction.apply_to_row(&mut row) {
+                    Ok(empty) => extreme |= empty,
+                    Err(_) => return tally.push_unfitted(Outcome::Degenerate, true, 1.0),
+                }
             } else {
                 extreme |= row.contains(&0.0);
             }

@@ -4,6 +4,7 @@
 
 pub mod cells_kernel;
 pub mod parallel;
+pub mod rating_kernel;
 pub mod summary;
 pub mod tally;
 pub mod yesno_kernel;
@@ -17,6 +18,7 @@ use crate::model::normal;
 use crate::plan::{Plan, Scenario};
 use cells_kernel::CellsKernel;
 use parallel::run_replicates;
+use rating_kernel::RatingKernel;
 use thiserror::Error;
 use yesno_kernel::YesNoKernel;
 
@@ -139,7 +141,7 @@ pub fn run_scenario(
     Ok(match &design.response {
         Response::YesNo => {
             let kernel = YesNoKernel::new(
-                &plan.observer,
+                &design.conditions[0].observer(&plan.observer),
                 scenario.split.present,
                 scenario.split.absent,
                 plan.study.rate_correction,
@@ -159,11 +161,27 @@ pub fn run_scenario(
                 summary::summarise(*scenario, &design.name, &tally, Method::MonteCarlo)
             }
         }
-        Response::Rating(_) => summary::summarise(
-            *scenario,
-            &design.name,
-            &tally::EstimateTally::new(Vec::new()),
-            Method::MonteCarlo,
-        ),
+        Response::Rating(scale) => {
+            let kernel = RatingKernel::new(
+                scale,
+                &design.conditions[0],
+                &plan.observer,
+                scenario.split,
+                study.rate_correction,
+                z_crit,
+            )
+            .map_err(|e| RunError::Model {
+                design: design.name.clone(),
+                message: e.to_string(),
+            })?;
+            let tally = run_replicates(
+                &kernel,
+                study.seed,
+                scenario.id,
+                study.experiments,
+                progress,
+            );
+            summary::summarise(*scenario, &design.name, &tally, Method::MonteCarlo)
+        }
     })
 }

@@ -63,21 +63,40 @@ impl RateCorrection {
     /// - half-n gives every empty cell half a count, taken from the row's largest cell, so
     ///   the total is kept (0 → 1/(2N), N → N − ½ when K = 2);
     /// - none leaves the row as it is.
-    pub fn apply_to_row(self, row: &mut [f64]) -> bool {
+    ///
+    /// Fails (leaving the row untouched) when half-n cannot give every empty cell half a
+    /// count and keep half a count in the largest cell: a row with fewer trials than
+    /// K/2 + 1.
+    pub fn apply_to_row(self, row: &mut [f64]) -> Result<bool, RowTooSmall> {
         let empty = row.iter().filter(|&&x| x == 0.0).count();
         match self {
             Self::LogLinear => row.iter_mut().for_each(|x| *x += 0.5),
             Self::HalfN if empty > 0 => {
-                let largest = (0..row.len())
-                    .max_by(|&a, &b| row[a].total_cmp(&row[b]))
-                    .unwrap_or(0);
-                row[largest] -= 0.5 * empty as f64;
+                // The first largest cell gives, so the rule is deterministic under ties.
+                let mut largest = 0;
+                for (j, &x) in row.iter().enumerate() {
+                    if x > row[largest] {
+                        largest = j;
+                    }
+                }
+                let given = 0.5 * empty as f64;
+                if row[largest] - given < 0.5 {
+                    return Err(RowTooSmall { empty });
+                }
+                row[largest] -= given;
                 row.iter_mut().filter(|x| **x == 0.0).for_each(|x| *x = 0.5);
             }
             Self::HalfN | Self::None => {}
         }
-        empty > 0
+        Ok(empty > 0)
     }
+}
+
+/// A row too small for the half-n rule.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
+#[error("the row has too few trials to give half a count to each of its {empty} empty cells")]
+pub struct RowTooSmall {
+    pub empty: usize,
 }
 
 #[cfg(test)]
@@ -112,7 +131,7 @@ mod tests {
         for rule in [RateCorrection::LogLinear, RateCorrection::HalfN] {
             for (x, n) in [(0u32, 20u32), (20, 20), (7, 20)] {
                 let mut row = [f64::from(n - x), f64::from(x)];
-                rule.apply_to_row(&mut row);
+                rule.apply_to_row(&mut row).unwrap();
                 let rate = row[1] / (row[0] + row[1]);
                 assert!(
                     (rate - rule.rate(x, n).unwrap()).abs() < 1e-15,
@@ -125,8 +144,11 @@ mod tests {
     #[test]
     fn half_n_keeps_row_totals() {
         let mut row = [0.0, 12.0, 0.0, 3.0];
-        assert!(RateCorrection::HalfN.apply_to_row(&mut row));
+        assert!(RateCorrection::HalfN.apply_to_row(&mut row).unwrap());
         assert_eq!(row, [0.5, 11.0, 0.5, 3.0]);
+        let mut tiny = [0.0, 0.0, 0.0, 1.0];
+        assert!(RateCorrection::HalfN.apply_to_row(&mut tiny).is_err());
+        assert_eq!(tiny, [0.0, 0.0, 0.0, 1.0]);
     }
 
     #[test]

@@ -4,6 +4,7 @@
 //! use maximum likelihood with analytic derivatives.
 
 pub mod correction;
+pub mod rating;
 pub mod yesno;
 
 pub use correction::RateCorrection;

@@ -3,7 +3,18 @@
 
 /// Keys allowed in each table, by table name (array-of-table entries use the bare name).
 pub const TABLE_KEYS: &[(&str, &[&str])] = &[
-    ("", &["study", "observer", "design"]),
+    (
+        "",
+        &[
+            "study",
+            "observer",
+            "design",
+            "hypothesis",
+            "targets",
+            "animals",
+            "budget",
+        ],
+    ),
     (
         "study",
         &[
@@ -16,7 +27,15 @@ pub const TABLE_KEYS: &[(&str, &[&str])] = &[
     ),
     (
         "observer",
-        &["d_prime", "criterion", "sigma", "lapse_rate", "lapse_yes"],
+        &[
+            "d_prime",
+            "criterion",
+            "criterion_fraction",
+            "payoffs",
+            "sigma",
+            "lapse_rate",
+            "lapse_yes",
+        ],
     ),
     (
         "design",
@@ -33,6 +52,31 @@ pub const TABLE_KEYS: &[(&str, &[&str])] = &[
         ],
     ),
     ("condition", &["name", "presence", "d_prime", "criterion"]),
+    (
+        "payoffs",
+        &[
+            "value_hit",
+            "cost_miss",
+            "value_correct_rejection",
+            "cost_false_alarm",
+        ],
+    ),
+    (
+        "hypothesis",
+        &["name", "kind", "conditions", "sided", "power", "shift"],
+    ),
+    ("targets", &["power", "half_width", "max_correlation"]),
+    (
+        "animals",
+        &[
+            "counts",
+            "sd_d_prime",
+            "sd_criterion",
+            "correlation",
+            "trial_cap",
+        ],
+    ),
+    ("budget", &["cost_per_animal", "cost_per_trial", "total"]),
     (
         "scale",
         &[
@@ -57,7 +101,55 @@ pub fn allowed(key: &str) -> &'static str {
         "confidence" => "a number strictly between 0 and 1, e.g. 0.95 (default 0.95)",
         "rate_correction" => "\"log-linear\" (default), \"half-n\" or \"none\"",
         "d_prime" => "a number ≥ 0 (sensitivity d′)",
-        "criterion" => "a number (c; positive = conservative)",
+        "criterion" => {
+            "a number (c; positive = conservative), or \"optimal\" with an [observer.payoffs] table"
+        }
+        "criterion_fraction" => {
+            "with criterion = \"optimal\": how far from c = 0 towards the ideal criterion the animal goes, 0 to 1 (default 1)"
+        }
+        "payoffs" => {
+            "a table [observer.payoffs] with value_hit, cost_miss, value_correct_rejection, cost_false_alarm (each ≥ 0)"
+        }
+        "value_hit" | "cost_miss" | "value_correct_rejection" | "cost_false_alarm" => {
+            "a number ≥ 0; value_hit + cost_miss and value_correct_rejection + cost_false_alarm must both be > 0"
+        }
+        "alpha" => "the level of every hypothesis test, strictly between 0 and 1 (default 0.05)",
+        "max_trials" => {
+            "the largest trial count per condition the search may propose, 2 to 1000000 (default 2000)"
+        }
+        "hypothesis" => "[[hypothesis]] tables with name and kind",
+        "kind" => {
+            "\"bias\", \"ideal-criterion\", \"criterion-shift\", \"sensitivity-difference\", \"unequal-variance\" or \"group-difference\""
+        }
+        "conditions" => {
+            "a list of condition names: two for criterion-shift and sensitivity-difference, at most one otherwise"
+        }
+        "sided" => "\"two-sided\" (default), \"greater\" or \"less\"",
+        "power" => "a power target strictly between 0 and 1, e.g. 0.8",
+        "shift" => {
+            "for group-difference: the second population's mean criterion minus the first's (a number)"
+        }
+        "targets" => "a [targets] table with power, half_width and/or max_correlation",
+        "half_width" => {
+            "an inline table of largest interval half-widths > 0, e.g. { criterion = 0.2, d_prime = 0.4 }"
+        }
+        "max_correlation" => "the largest acceptable |r(d̂′, ĉ)|, in (0, 1]",
+        "animals" => "an [animals] table with counts",
+        "counts" => "a list of whole numbers of animals ≥ 2, e.g. [6, 10, 16]",
+        "sd_d_prime" => "between-animal SD of d′, ≥ 0 (default 0)",
+        "sd_criterion" => "between-animal SD of the criterion, ≥ 0 (default 0)",
+        "correlation" => {
+            "correlation of an animal's d′ and criterion, strictly between −1 and 1 (default 0)"
+        }
+        "trial_cap" => {
+            "the most trials one animal can be given, a whole number at least as large as the smallest trial count of some design"
+        }
+        "budget" => "a [budget] table with cost_per_animal and cost_per_trial",
+        "cost_per_animal" => "a number ≥ 0",
+        "cost_per_trial" => "a number ≥ 0",
+        "total" => {
+            "the money (or time) available, enough for at least one animal at the smallest trial count"
+        }
         "lapse_rate" => {
             "a share of trials in [0, 1) on which the animal ignores the stimulus (default 0)"
         }

@@ -11,14 +11,17 @@ mod raw;
 mod scenario;
 mod toml_error;
 mod validate;
+mod validate_goals;
 
 pub use error::PlanError;
 pub use keys::{TABLE_KEYS, allowed};
 pub use scenario::{Scenario, expand};
 
 use crate::design::Design;
+use crate::design::goals::{Animals, Budget, Hypothesis, Targets};
 use crate::fit::correction::RateCorrection;
 use crate::model::Observer;
+use crate::model::ideal::Payoffs;
 use serde::Serialize;
 use std::path::{Path, PathBuf};
 
@@ -32,6 +35,21 @@ pub struct Study {
     /// Confidence level of the Wald intervals, in (0, 1).
     pub confidence: f64,
     pub rate_correction: RateCorrection,
+    /// Level of every hypothesis test, in (0, 1).
+    pub alpha: f64,
+    /// Largest trial count per condition the sample-size search may propose.
+    pub max_trials: u32,
+}
+
+/// How the observer's criterion was given.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum CriterionRule {
+    /// A number, the same in every condition unless a condition sets its own.
+    Fixed { criterion: f64 },
+    /// The ideal observer's for each condition's presence rate and these payoffs (Green &
+    /// Swets 1966), times `fraction` (partial adjustment from c = 0).
+    Optimal { payoffs: Payoffs, fraction: f64 },
 }
 
 /// A validated plan.
@@ -41,7 +59,12 @@ pub struct Plan {
     pub source: PathBuf,
     pub study: Study,
     pub observer: Observer,
+    pub criterion_rule: CriterionRule,
     pub designs: Vec<Design>,
+    pub hypotheses: Vec<Hypothesis>,
+    pub targets: Targets,
+    pub animals: Option<Animals>,
+    pub budget: Option<Budget>,
 }
 
 impl Plan {

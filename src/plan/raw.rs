@@ -14,6 +14,11 @@ pub struct RawPlan {
     pub observer: RawObserver,
     #[serde(rename = "design")]
     pub designs: Spanned<Vec<RawDesign>>,
+    #[serde(rename = "hypothesis")]
+    pub hypotheses: Option<Vec<RawHypothesis>>,
+    pub targets: Option<RawTargets>,
+    pub animals: Option<RawAnimals>,
+    pub budget: Option<RawBudget>,
 }
 
 /// `[study]`: what is simulated and how results are summarised.
@@ -25,6 +30,8 @@ pub struct RawStudy {
     pub experiments: Option<Spanned<i64>>,
     pub confidence: Option<Spanned<f64>>,
     pub rate_correction: Option<Spanned<String>>,
+    pub alpha: Option<Spanned<f64>>,
+    pub max_trials: Option<Spanned<i64>>,
 }
 
 /// `[observer]`: the hypothesised animal.
@@ -32,7 +39,9 @@ pub struct RawStudy {
 #[serde(deny_unknown_fields)]
 pub struct RawObserver {
     pub d_prime: Spanned<f64>,
-    pub criterion: Spanned<f64>,
+    pub criterion: Spanned<RawCriterion>,
+    pub criterion_fraction: Option<Spanned<f64>>,
+    pub payoffs: Option<Spanned<RawPayoffs>>,
     pub sigma: Option<Spanned<f64>>,
     pub lapse_rate: Option<Spanned<f64>>,
     pub lapse_yes: Option<Spanned<f64>>,
@@ -62,7 +71,7 @@ pub struct RawCondition {
     pub name: Spanned<String>,
     pub presence: Option<Spanned<f64>>,
     pub d_prime: Option<Spanned<f64>>,
-    pub criterion: Option<Spanned<f64>>,
+    pub criterion: Option<Spanned<RawCriterion>>,
 }
 
 /// `scale = { … }` on a design: an ordered response scale with more than two steps.
@@ -74,4 +83,64 @@ pub struct RawScale {
     pub criteria: Option<Spanned<Vec<f64>>>,
     pub absent_shares: Option<Spanned<Vec<f64>>>,
     pub fix_sigma: Option<bool>,
+}
+
+/// A criterion given as a number or as the word "optimal" (the ideal observer's).
+#[derive(Debug, Clone, Deserialize)]
+#[serde(untagged)]
+pub enum RawCriterion {
+    Value(f64),
+    Word(String),
+}
+
+/// `[observer.payoffs]`: what each outcome is worth to the animal (Green & Swets 1966).
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawPayoffs {
+    pub value_hit: f64,
+    pub cost_miss: f64,
+    pub value_correct_rejection: f64,
+    pub cost_false_alarm: f64,
+}
+
+/// One `[[hypothesis]]`: a test to run on every simulated dataset.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawHypothesis {
+    pub name: Spanned<String>,
+    pub kind: Spanned<String>,
+    pub conditions: Option<Spanned<Vec<String>>>,
+    pub sided: Option<Spanned<String>>,
+    pub power: Option<Spanned<f64>>,
+    /// For a group difference: the second population's mean criterion minus the first's.
+    pub shift: Option<Spanned<f64>>,
+}
+
+/// `[targets]`: what the smallest experiment must achieve.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawTargets {
+    pub power: Option<Spanned<f64>>,
+    pub half_width: Option<Spanned<std::collections::BTreeMap<String, Spanned<f64>>>>,
+    pub max_correlation: Option<Spanned<f64>>,
+}
+
+/// `[animals]`: a group of animals whose parameters vary around the observer's.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawAnimals {
+    pub counts: Spanned<Vec<Spanned<i64>>>,
+    pub sd_d_prime: Option<Spanned<f64>>,
+    pub sd_criterion: Option<Spanned<f64>>,
+    pub correlation: Option<Spanned<f64>>,
+    pub trial_cap: Option<Spanned<i64>>,
+}
+
+/// `[budget]`: what animals and trials cost.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawBudget {
+    pub cost_per_animal: Spanned<f64>,
+    pub cost_per_trial: Spanned<f64>,
+    pub total: Option<Spanned<f64>>,
 }

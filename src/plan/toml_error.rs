@@ -33,6 +33,10 @@ pub fn translate(path: &Path, source: &str, err: &toml::de::Error) -> PlanError 
         out.key = join(&table_of(&located), &missing);
         out.problem = "required key is missing".into();
         out.allowed = allowed(&missing).to_string();
+    } else if message.starts_with("data did not match any variant") {
+        let last = last_key(&out.key);
+        out.problem = "wrong type".into();
+        out.allowed = allowed(&last).to_string();
     } else if message.starts_with("invalid type") || message.starts_with("invalid value") {
         let last = last_key(&out.key);
         out.problem = format!("wrong type: {}", plain_types(message));

@@ -2,12 +2,13 @@
 
 use super::keys::allowed;
 use super::locate::{key_path_of, line_of};
-use super::raw::{RawDesign, RawPlan, RawScale};
-use super::{Plan, PlanError, Study};
+use super::raw::{RawCriterion, RawDesign, RawPlan, RawScale};
+use super::{CriterionRule, Plan, PlanError, Study};
 use crate::design::{
     BaseRate, Condition, Design, RatingScale, RecordKind, Response, SharedParameter, split_trials,
 };
 use crate::fit::correction::RateCorrection;
+use crate::model::ideal::{IdealObserver, Payoffs};
 use crate::model::{LapseSpec, Observer, normal};
 use std::path::Path;
 use toml::Spanned;
@@ -16,18 +17,22 @@ use toml::Spanned;
 pub const DEFAULT_EXPERIMENTS: u64 = 2000;
 /// Default confidence level of intervals.
 pub const DEFAULT_CONFIDENCE: f64 = 0.95;
+/// Default level of hypothesis tests.
+pub const DEFAULT_ALPHA: f64 = 0.05;
+/// Default ceiling of the sample-size search.
+pub const DEFAULT_MAX_TRIALS: u32 = 2000;
 /// Largest trial count per condition accepted (keeps tables and memory bounded).
 pub const MAX_TRIALS: i64 = 1_000_000;
 
 /// Error builder bound to one file's text.
-struct Ctx<'a> {
-    path: &'a Path,
-    source: &'a str,
+pub(super) struct Ctx<'a> {
+    pub(super) path: &'a Path,
+    pub(super) source: &'a str,
 }
 
 impl Ctx<'_> {
     /// An error at a value's span; the key path comes from the text, `key` names the rule.
-    fn at<T>(&self, value: &Spanned<T>, key: &str, problem: String) -> PlanError {
+    pub(super) fn at<T>(&self, value: &Spanned<T>, key: &str, problem: String) -> PlanError {
         let span = value.span();
         PlanError {
             file: self.path.to_path_buf(),
@@ -42,13 +47,13 @@ impl Ctx<'_> {
 pub fn validate(path: &Path, source: &str, raw: RawPlan) -> Result<Plan, PlanError> {
     let ctx = Ctx { path, source };
     let study = study(&ctx, &raw)?;
-    let observer = observer(&ctx, &raw)?;
+    let spec = observer(&ctx, &raw)?;
     if raw.designs.get_ref().is_empty() {
         return Err(ctx.at(&raw.designs, "design", "no design given".into()));
     }
     let mut designs = Vec::new();
     for d in raw.designs.get_ref() {
-        let design = design(&ctx, d, &observer)?;
+        let design = design(&ctx, d, &spec)?;
         if designs.iter().any(|x: &Design| x.name == design.name) {
             return Err(ctx.at(
                 &d.name,
@@ -58,12 +63,92 @@ pub fn validate(path: &Path, source: &str, raw: RawPlan) -> Result<Plan, PlanErr
         }
         designs.push(design);
     }
+    let mut observer = spec.observer;
+    if spec.optimal {
+        // The header's criterion: the ideal one for the first design's first condition.
+        observer.criterion = designs[0].conditions[0].criterion;
+    }
+    let goals = super::validate_goals::goals(&ctx, &raw, &designs, &study, spec.payoffs)?;
     Ok(Plan {
         source: path.to_path_buf(),
         study,
         observer,
+        criterion_rule: spec.rule(),
         designs,
+        hypotheses: goals.hypotheses,
+        targets: goals.targets,
+        animals: goals.animals,
+        budget: goals.budget,
     })
+}
+
+/// The observer as written, before conditions resolve an "optimal" criterion.
+struct ObserverSpec {
+    observer: Observer,
+    payoffs: Option<Payoffs>,
+    fraction: f64,
+    optimal: bool,
+    criterion_span: std::ops::Range<usize>,
+}
+
+impl ObserverSpec {
+    fn rule(&self) -> CriterionRule {
+        match (self.optimal, self.payoffs) {
+            (true, Some(payoffs)) => CriterionRule::Optimal {
+                payoffs,
+                fraction: self.fraction,
+            },
+            _ => CriterionRule::Fixed {
+                criterion: self.observer.criterion,
+            },
+        }
+    }
+
+    /// The criterion of a condition without its own: the fixed one, or the ideal
+    /// observer's for the condition's presence rate (times the partial-adjustment fraction).
+    fn default_criterion(
+        &self,
+        ctx: &Ctx,
+        presence: f64,
+        d_prime: f64,
+        fixed: f64,
+    ) -> Result<f64, PlanError> {
+        if !self.optimal {
+            return Ok(fixed);
+        }
+        optimal_criterion(
+            ctx,
+            self.payoffs,
+            presence,
+            d_prime,
+            self.fraction,
+            &self.criterion_span,
+        )
+    }
+}
+
+/// c_opt = ln β_opt / d′ for a presence rate (Green & Swets 1966), times `fraction`.
+fn optimal_criterion(
+    ctx: &Ctx,
+    payoffs: Option<Payoffs>,
+    presence: f64,
+    d_prime: f64,
+    fraction: f64,
+    span: &std::ops::Range<usize>,
+) -> Result<f64, PlanError> {
+    let at = Spanned::new(span.clone(), ());
+    let payoffs = payoffs.ok_or_else(|| {
+        ctx.at(
+            &at,
+            "criterion",
+            "\"optimal\" needs an [observer.payoffs] table".into(),
+        )
+    })?;
+    let ideal = IdealObserver::new(d_prime, presence, payoffs)
+        .map_err(|e| ctx.at(&at, "criterion", e.to_string()))?;
+    ideal
+        .partial_criterion(fraction)
+        .map_err(|e| ctx.at(&at, "criterion", e.to_string()))
 }
 
 fn study(ctx: &Ctx, raw: &RawPlan) -> Result<Study, PlanError> {
@@ -104,16 +189,34 @@ fn study(ctx: &Ctx, raw: &RawPlan) -> Result<Study, PlanError> {
             )
         })?,
     };
+    let alpha = match &s.alpha {
+        None => DEFAULT_ALPHA,
+        Some(a) if open_unit(*a.get_ref()) => *a.get_ref(),
+        Some(a) => return Err(ctx.at(a, "alpha", format!("{} is outside (0, 1)", a.get_ref()))),
+    };
+    let max_trials = match &s.max_trials {
+        None => DEFAULT_MAX_TRIALS,
+        Some(m) if (2..=MAX_TRIALS).contains(m.get_ref()) => *m.get_ref() as u32,
+        Some(m) => {
+            return Err(ctx.at(
+                m,
+                "max_trials",
+                format!("{} is outside 2 to {MAX_TRIALS}", m.get_ref()),
+            ));
+        }
+    };
     Ok(Study {
         title: s.title.clone(),
         seed: seed as u64,
         experiments,
         confidence,
         rate_correction,
+        alpha,
+        max_trials,
     })
 }
 
-fn observer(ctx: &Ctx, raw: &RawPlan) -> Result<Observer, PlanError> {
+fn observer(ctx: &Ctx, raw: &RawPlan) -> Result<ObserverSpec, PlanError> {
     let o = &raw.observer;
     let d = *o.d_prime.get_ref();
     if !(d.is_finite() && d >= 0.0) {
@@ -123,12 +226,63 @@ fn observer(ctx: &Ctx, raw: &RawPlan) -> Result<Observer, PlanError> {
             format!("{d} is not a sensitivity ≥ 0"),
         ));
     }
-    let c = *o.criterion.get_ref();
-    if !c.is_finite() {
+    let payoffs = match &o.payoffs {
+        None => None,
+        Some(p) => {
+            let r = p.get_ref();
+            Some(
+                Payoffs::new(
+                    r.value_hit,
+                    r.cost_miss,
+                    r.value_correct_rejection,
+                    r.cost_false_alarm,
+                )
+                .map_err(|e| ctx.at(p, "payoffs", e.to_string()))?,
+            )
+        }
+    };
+    let fraction = match &o.criterion_fraction {
+        None => 1.0,
+        Some(f) if (0.0..=1.0).contains(f.get_ref()) => *f.get_ref(),
+        Some(f) => {
+            return Err(ctx.at(
+                f,
+                "criterion_fraction",
+                format!("{} is outside [0, 1]", f.get_ref()),
+            ));
+        }
+    };
+    let (c, optimal) = match o.criterion.get_ref() {
+        RawCriterion::Value(c) if c.is_finite() => (*c, false),
+        RawCriterion::Value(c) => {
+            return Err(ctx.at(
+                &o.criterion,
+                "criterion",
+                format!("{c} is not a finite number"),
+            ));
+        }
+        // A placeholder until each condition's presence rate gives its ideal criterion.
+        RawCriterion::Word(w) if w == "optimal" => (0.0, true),
+        RawCriterion::Word(w) => {
+            return Err(ctx.at(
+                &o.criterion,
+                "criterion",
+                format!("\"{w}\" is neither a number nor \"optimal\""),
+            ));
+        }
+    };
+    if optimal && payoffs.is_none() {
         return Err(ctx.at(
             &o.criterion,
             "criterion",
-            format!("{c} is not a finite number"),
+            "criterion = \"optimal\" needs an [observer.payoffs] table".into(),
+        ));
+    }
+    if let (false, Some(f)) = (optimal, &o.criterion_fraction) {
+        return Err(ctx.at(
+            f,
+            "criterion_fraction",
+            "criterion_fraction applies only with criterion = \"optimal\"".into(),
         ));
     }
     let sigma = match &o.sigma {
@@ -164,15 +318,23 @@ fn observer(ctx: &Ctx, raw: &RawPlan) -> Result<Observer, PlanError> {
             (rate > 0.0).then_some(LapseSpec { rate, guess_yes })
         }
     };
-    Ok(Observer {
+    let observer = Observer {
         d_prime: d,
         criterion: c,
         sigma,
         lapse,
+    };
+    Ok(ObserverSpec {
+        observer,
+        payoffs,
+        fraction,
+        optimal,
+        criterion_span: o.criterion.span(),
     })
 }
 
-fn design(ctx: &Ctx, d: &RawDesign, observer: &Observer) -> Result<Design, PlanError> {
+fn design(ctx: &Ctx, d: &RawDesign, spec: &ObserverSpec) -> Result<Design, PlanError> {
+    let observer = &spec.observer;
     let name = d.name.get_ref().trim().to_string();
     if name.is_empty() {
         return Err(ctx.at(&d.name, "name", "the design name is empty".into()));
@@ -191,14 +353,7 @@ fn design(ctx: &Ctx, d: &RawDesign, observer: &Observer) -> Result<Design, PlanE
         Response::YesNo => observer.criterion,
         Response::Rating(s) => s.criteria[s.boundary - 1],
     };
-    let conditions = conditions(
-        ctx,
-        d,
-        &name,
-        default_presence,
-        observer.d_prime,
-        boundary_criterion,
-    )?;
+    let conditions = conditions(ctx, d, &name, default_presence, spec, boundary_criterion)?;
     let trials = trials(ctx, d, record, &conditions)?;
     let shared = shared(ctx, d, &response, base_rate, conditions.len())?;
     Ok(Design {
@@ -303,9 +458,10 @@ fn conditions(
     d: &RawDesign,
     design_name: &str,
     default_presence: Option<f64>,
-    d_prime: f64,
+    spec: &ObserverSpec,
     criterion: f64,
 ) -> Result<Vec<Condition>, PlanError> {
+    let d_prime = spec.observer.d_prime;
     let Some(list) = &d.conditions else {
         let presence = default_presence.ok_or_else(|| {
             ctx.at(
@@ -318,7 +474,7 @@ fn conditions(
             name: design_name.to_string(),
             presence,
             d_prime,
-            criterion,
+            criterion: spec.default_criterion(ctx, presence, d_prime, criterion)?,
         }]);
     };
     if list.get_ref().is_empty() {
@@ -355,16 +511,15 @@ fn conditions(
             }
             None => d_prime,
         };
-        let crit = match &c.criterion {
-            Some(v) if v.get_ref().is_finite() => *v.get_ref(),
-            Some(v) => {
-                return Err(ctx.at(
-                    v,
-                    "criterion",
-                    format!("{} is not a finite number", v.get_ref()),
-                ));
+        let crit = match c.criterion.as_ref().map(|v| (v, v.get_ref())) {
+            Some((_, RawCriterion::Value(x))) if x.is_finite() => *x,
+            Some((v, RawCriterion::Word(w))) if w == "optimal" => {
+                optimal_criterion(ctx, spec.payoffs, presence, dp, spec.fraction, &v.span())?
             }
-            None => criterion,
+            Some((v, _)) => {
+                return Err(ctx.at(v, "criterion", "not a finite number or \"optimal\"".into()));
+            }
+            None => spec.default_criterion(ctx, presence, dp, criterion)?,
         };
         out.push(Condition {
             name,
@@ -613,6 +768,6 @@ fn criteria_from_shares(
     Ok(out)
 }
 
-fn open_unit(x: f64) -> bool {
+pub(super) fn open_unit(x: f64) -> bool {
     x > 0.0 && x < 1.0
 }

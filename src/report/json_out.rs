@@ -12,6 +12,7 @@ struct Document<'a> {
     seed: u64,
     plan: &'a Plan,
     results: &'a [ScenarioSummary],
+    comparisons: Vec<super::comparison::Comparison>,
     caution: &'static str,
 }
 
@@ -23,6 +24,7 @@ pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> serde_json::Result<
         seed: plan.study.seed,
         plan,
         results: summaries,
+        comparisons: super::comparison::comparisons(plan, summaries),
         caution: super::CAUTION,
     };
     let mut bytes = serde_json::to_vec_pretty(&doc)?;

@@ -3,7 +3,9 @@
 //! Nothing here computes statistics; it formats what the engine summarised. Output files
 //! are written whole or not at all (see [`output_file`]).
 
+pub mod comparison;
 pub mod csv_out;
+pub mod explore_text;
 pub mod format;
 pub mod json_out;
 pub mod output_file;

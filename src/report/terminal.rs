@@ -22,6 +22,9 @@ pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> String {
             .collect();
         design_block(&mut out, plan, design, &rows);
     }
+    out.push_str(&super::comparison::render(&super::comparison::comparisons(
+        plan, summaries,
+    )));
     let _ = writeln!(out, "Caution: {CAUTION}");
     out
 }

@@ -1,0 +1,60 @@
+//! A whole plan scanned by expected information: every design over its grid of trial counts.
+
+use serde::Serialize;
+
+use super::information::{DesignInformation, InformationError, ScenarioInformation};
+use super::trial_grid::{DEFAULT_POINTS, design_grid};
+use crate::plan::Plan;
+
+/// Which trial counts to scan; `None` ends default per design (see
+/// [`super::trial_grid::design_grid`]).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct ScanOptions {
+    pub from: Option<u32>,
+    pub to: Option<u32>,
+    /// Log-spaced counts per design (before deduplication; the listed counts are added).
+    pub points: usize,
+}
+
+impl Default for ScanOptions {
+    fn default() -> Self {
+        ScanOptions {
+            from: None,
+            to: None,
+            points: DEFAULT_POINTS,
+        }
+    }
+}
+
+/// One design's scan.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct DesignScan {
+    pub design: String,
+    /// Short description of the record, e.g. "error totals, unknown base rate".
+    pub record: String,
+    /// Free parameters in θ order, as the verdicts name them.
+    pub parameters: Vec<String>,
+    /// One row per trial count, increasing (empty when no count of the range suits the design).
+    pub rows: Vec<ScenarioInformation>,
+}
+
+/// Scans every design of `plan`. Profile ranges are computed at every count that does not
+/// identify θ (cheap next to a simulation: a few hundred small fits per count).
+pub fn scan_plan(plan: &Plan, options: ScanOptions) -> Result<Vec<DesignScan>, InformationError> {
+    plan.designs
+        .iter()
+        .map(|design| {
+            let info = DesignInformation::new(plan, design)?;
+            let rows = design_grid(design, options.from, options.to, options.points)
+                .into_iter()
+                .map(|n| info.at(n, true))
+                .collect::<Result<Vec<_>, _>>()?;
+            Ok(DesignScan {
+                design: design.name.clone(),
+                record: design.record_label(),
+                parameters: info.parameter_names().symbols.clone(),
+                rows,
+            })
+        })
+        .collect()
+}

@@ -1,0 +1,119 @@
+//! What the experiment must show: hypotheses tested on every simulated dataset, the
+//! targets the smallest experiment must meet, and the group of animals it is run on.
+
+use crate::engine::Quantity;
+use crate::infer::Sided;
+use serde::Serialize;
+
+/// The kinds of hypothesis vigil tests.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum TestKind {
+    /// The criterion differs from 0: the animal is biased.
+    Bias,
+    /// The criterion differs from the ideal observer's for the condition's payoffs.
+    IdealCriterion,
+    /// The criterion differs between two conditions.
+    CriterionShift,
+    /// d′ differs between two conditions.
+    SensitivityDifference,
+    /// σ ≠ 1 (rating designs).
+    UnequalVariance,
+    /// The mean criterion differs between two populations of animals.
+    GroupDifference,
+}
+
+impl TestKind {
+    pub const NAMES: [&'static str; 6] = [
+        "bias",
+        "ideal-criterion",
+        "criterion-shift",
+        "sensitivity-difference",
+        "unequal-variance",
+        "group-difference",
+    ];
+
+    pub fn from_name(name: &str) -> Option<Self> {
+        Some(match name {
+            "bias" => Self::Bias,
+            "ideal-criterion" => Self::IdealCriterion,
+            "criterion-shift" => Self::CriterionShift,
+            "sensitivity-difference" => Self::SensitivityDifference,
+            "unequal-variance" => Self::UnequalVariance,
+            "group-difference" => Self::GroupDifference,
+            _ => return None,
+        })
+    }
+
+    /// How many conditions the hypothesis names (shift and difference compare two).
+    pub fn conditions_needed(self) -> usize {
+        match self {
+            Self::CriterionShift | Self::SensitivityDifference => 2,
+            _ => 1,
+        }
+    }
+}
+
+/// A hypothesis from the plan.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Hypothesis {
+    pub name: String,
+    pub kind: TestKind,
+    /// Named conditions; empty means "the first condition of each design".
+    pub conditions: Vec<String>,
+    pub sided: Sided,
+    /// Power target for this hypothesis (falls back to `Targets::power`).
+    pub power: Option<f64>,
+    /// Group difference only: second population's mean criterion minus the first's.
+    pub shift: f64,
+}
+
+/// What the smallest experiment must achieve.
+#[derive(Debug, Clone, PartialEq, Default, Serialize)]
+pub struct Targets {
+    /// Power every hypothesis must reach unless it sets its own.
+    pub power: Option<f64>,
+    /// Largest acceptable mean interval half-width, per quantity.
+    pub half_width: Vec<(Quantity, f64)>,
+    /// Largest acceptable |corr(d̂′, ĉ)|.
+    pub max_correlation: Option<f64>,
+}
+
+impl Targets {
+    /// Whether any target is set.
+    pub fn any(&self, hypotheses: &[Hypothesis]) -> bool {
+        self.power.is_some()
+            || !self.half_width.is_empty()
+            || self.max_correlation.is_some()
+            || hypotheses.iter().any(|h| h.power.is_some())
+    }
+}
+
+/// A group of animals whose d′ and criterion vary around the observer's.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Animals {
+    /// Numbers of animals to scan, increasing.
+    pub counts: Vec<u32>,
+    pub sd_d_prime: f64,
+    pub sd_criterion: f64,
+    /// Correlation of an animal's d′ and criterion, in (−1, 1).
+    pub correlation: f64,
+    /// Most trials one animal can be given (habituation), if limited.
+    pub trial_cap: Option<u32>,
+}
+
+/// What animals and trials cost, and what may be spent.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Budget {
+    pub cost_per_animal: f64,
+    pub cost_per_trial: f64,
+    pub total: Option<f64>,
+}
+
+impl Budget {
+    /// Cost of `animals` animals given `trials` trials each (per condition × conditions).
+    pub fn cost(&self, animals: u32, trials_per_animal: u32) -> f64 {
+        f64::from(animals)
+            * (self.cost_per_animal + self.cost_per_trial * f64::from(trials_per_animal))
+    }
+}
