@@ -24,6 +24,9 @@ pub enum AppError {
         path: PathBuf,
         source: std::io::Error,
     },
+    /// A bad command-line value, already worded with the option and what is allowed.
+    #[error("{0}")]
+    Input(String),
     #[error("{0}")]
     Internal(String),
 }
@@ -32,7 +35,7 @@ impl AppError {
     /// The documented exit code of this failure.
     pub fn exit_code(&self) -> i32 {
         match self {
-            Self::Plan(_) | Self::Run(_) | Self::Output { .. } => 2,
+            Self::Plan(_) | Self::Run(_) | Self::Output { .. } | Self::Input(_) => 2,
             Self::Internal(_) => 1,
         }
     }
@@ -143,14 +146,28 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
 
 /// Runs a prepared plan, writes the output files whole and returns the terminal report.
 pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<String, AppError> {
-    let summaries = engine::run_plan(&run.plan, run.options, progress)?;
-    write_outputs(&run.plan, &summaries, run.csv, run.json)?;
-    Ok(report::terminal::render(&run.plan, &summaries))
+    let plan = &run.plan;
+    let summaries = engine::run_plan(plan, run.options, progress)?;
+    let searches = if plan.targets.any(&plan.hypotheses) && !run.options.exact {
+        crate::power::search::search_plan(plan, progress)?
+    } else {
+        Vec::new()
+    };
+    write_outputs(plan, &summaries, &searches, run.csv, run.json)?;
+    let mut text = report::terminal::render(plan, &summaries);
+    let verdict = report::verdict::render(&searches, plan.study.max_trials);
+    if !verdict.is_empty() {
+        // The verdict goes before the closing caution.
+        let at = text.rfind("Caution:").unwrap_or(text.len());
+        text.insert_str(at, &verdict);
+    }
+    Ok(text)
 }
 
 fn write_outputs(
     plan: &Plan,
     summaries: &[ScenarioSummary],
+    searches: &[crate::power::search::SearchResult],
     csv: Option<PendingFile>,
     json: Option<PendingFile>,
 ) -> Result<(), AppError> {
@@ -164,7 +181,7 @@ fn write_outputs(
     };
     let json_bytes = match &json {
         Some(_) => Some(
-            report::json_out::render(plan, summaries)
+            report::json_out::render(plan, summaries, searches)
                 .map_err(|e| AppError::Internal(e.to_string()))?,
         ),
         None => None,

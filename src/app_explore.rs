@@ -5,9 +5,11 @@
 //! Exit codes as for the other commands (see [`crate::app`]): 2 for a bad plan, bad options
 //! or an output path that cannot be written (all found before any work); 1 otherwise.
 
+use crate::analytic::information::InformationError;
 use crate::analytic::scan::{ScanOptions, scan_plan};
 use crate::analytic::trial_grid::{DEFAULT_POINTS, MIN_TRIALS};
 use crate::app::AppError;
+use crate::engine::RunError;
 use crate::plan::{Plan, PlanError};
 use crate::report::{self, PendingFile};
 use std::path::{Path, PathBuf};
@@ -93,7 +95,14 @@ pub fn explore(req: &ExploreRequest) -> Result<String, AppError> {
     let plan = Plan::load(&req.plan)?;
     let options = scan_options(req)?;
     let json = req.json.as_deref().map(claim).transpose()?;
-    let scans = scan_plan(&plan, options).map_err(|e| AppError::Internal(e.to_string()))?;
+    // A model the plan's values cannot build is bad input (exit 2), as in `vigil run`.
+    let scans = scan_plan(&plan, options).map_err(|e| match e {
+        InformationError::Model { design, source } => AppError::Run(RunError::Model {
+            design,
+            message: source.to_string(),
+        }),
+        other => AppError::Internal(other.to_string()),
+    })?;
     if let Some(file) = json {
         let bytes = report::explore_text::render_json(&plan, &scans)
             .map_err(|e| AppError::Internal(e.to_string()))?;

@@ -10,6 +10,7 @@
 pub mod analytic;
 pub mod app;
 pub mod app_explore;
+pub mod app_ideal;
 pub mod cells;
 pub mod design;
 pub mod engine;
@@ -17,6 +18,7 @@ pub mod fit;
 pub mod infer;
 pub mod model;
 pub mod plan;
+pub mod power;
 pub mod progress;
 pub mod report;
 pub mod simulate;

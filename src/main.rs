@@ -58,11 +58,50 @@ enum Command {
         #[arg(long, value_name = "FILE")]
         json: Option<PathBuf>,
     },
+    /// The ideal observer (Green & Swets 1966): the criterion that maximises the expected
+    /// payoff per trial, its rates, and how the false-alarm-to-miss ratio moves with the stakes.
+    Ideal {
+        /// Sensitivity d′ (> 0).
+        #[arg(long, value_name = "D", allow_negative_numbers = true)]
+        d_prime: f64,
+        /// Share of trials with the stimulus present, strictly between 0 and 1.
+        #[arg(long, value_name = "P", allow_negative_numbers = true)]
+        presence: f64,
+        /// Value of a hit, cost of a miss, value of a correct rejection, cost of a false alarm.
+        #[arg(long, value_name = "V_H,C_M,V_CR,C_FA", allow_hyphen_values = true,
+              value_parser = vigil::app_ideal::parse_payoffs)]
+        payoffs: [f64; 4],
+        /// Also show the criterion f·c_opt, a fraction f in [0, 1] of the way from 0 to c_opt.
+        #[arg(long, value_name = "F", allow_negative_numbers = true)]
+        fraction: Option<f64>,
+        /// Scan the payoff ratio (V_CR + C_FA)/(V_H + C_M), log-spaced, e.g. 0.1:10:9.
+        #[arg(long, value_name = "LOW:HIGH:POINTS", allow_hyphen_values = true,
+              value_parser = vigil::app_ideal::parse_scan)]
+        scan: Option<(f64, f64, usize)>,
+        /// Also write the figures as JSON.
+        #[arg(long, value_name = "FILE")]
+        json: Option<PathBuf>,
+    },
 }
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
+        Command::Ideal {
+            d_prime,
+            presence,
+            payoffs,
+            fraction,
+            scan,
+            json,
+        } => vigil::app_ideal::ideal(&vigil::app_ideal::IdealRequest {
+            d_prime,
+            presence,
+            payoffs,
+            fraction,
+            scan,
+            json,
+        }),
         Command::Explore {
             plan,
             from,

@@ -48,8 +48,8 @@ pub enum InformationError {
     #[error("design \"{design}\": {source}")]
     Input { design: String, source: InputError },
     #[error(
-        "design \"{design}\" cannot be run at {trials} trials: a full record needs at least 2 \
-         trials and at least one present and one absent trial in every condition"
+        "design \"{design}\" cannot be run at {trials} trials: every design needs at least 2, \
+         and a full record at least one present and one absent trial in every condition"
     )]
     Trials { design: String, trials: u32 },
 }
@@ -64,6 +64,16 @@ pub struct AsymptoticSe {
     pub truth: f64,
     /// `None` when the information is singular (the design does not identify θ).
     pub se: Option<f64>,
+}
+
+impl AsymptoticSe {
+    /// Table label, as in the Monte Carlo tables: `d′`, `c[low]`, `π`.
+    pub fn label(&self) -> String {
+        match &self.condition {
+            Some(c) => format!("{}[{c}]", self.quantity.label()),
+            None => self.quantity.label().to_string(),
+        }
+    }
 }
 
 /// Everything the expected information says about one design at one trial count.
@@ -279,8 +289,14 @@ impl DesignInformation {
         ] {
             let r = profile_interval(&self.model, &counts, &best, &target, &options)
                 .map_err(input_err)?;
+            // `d′[x]` when the first condition has its own d′ among several, else `d′`.
+            let symbol = self
+                .model
+                .parameters()
+                .index_of(&r.parameter)
+                .map_or(parameter.to_string(), |i| self.names.symbols[i].clone());
             out.push(ProfileRange {
-                parameter: parameter.to_string(),
+                parameter: symbol,
                 truth,
                 level: r.level,
                 lower: r.lower.into(),

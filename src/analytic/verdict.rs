@@ -27,7 +27,7 @@ pub enum Verdict {
     },
     NotIdentified {
         deficiency: usize,
-        /// Each unseparable combination, e.g. `logit π + 0.44·d′ − 0.41·c`: moving θ along
+        /// Each unseparable combination, e.g. `logit π − 0.35·c + 0.17·d′`: moving θ along
         /// it (in these proportions) leaves every expected count unchanged to first order.
         null_directions: Vec<String>,
         /// Plain names of the parameters involved, e.g. `d′`, `c`, `the base rate`.
@@ -133,7 +133,7 @@ pub fn from_assessment(
     }
 }
 
-/// `logit π + 0.44·d′ − 0.41·c`: largest coefficient 1 first, the rest by size.
+/// `logit π − 0.35·c + 0.17·d′`: largest coefficient 1 first, the rest by size.
 fn combination(d: &NullDirection, map: &ParameterMap, names: &ParameterNames) -> String {
     let mut out = String::new();
     for (k, (name, c)) in d.coefficients.iter().enumerate() {
@@ -215,7 +215,7 @@ impl ProfileRange {
 
 /// One sentence in plain words, e.g. "identified", "weakly identified: condition number
 /// 3.2e6, |r(d′, c)| = 0.97", or "not identified: d′, c and the base rate cannot be told
-/// apart — moving them together along logit π + 0.44·d′ − 0.41·c leaves every expected count
+/// apart — moving them together along logit π − 0.35·c + 0.17·d′ leaves every expected count
 /// unchanged".
 pub fn plain_verdict(info: &ScenarioInformation) -> String {
     match &info.verdict {

@@ -20,7 +20,18 @@ pub fn observation_model(
     ObservationModel::new(condition_specs(design, observer, trials))
 }
 
-/// One condition spec per condition of the design.
+/// The specs that generate data: as [`condition_specs`], but with the animal's own σ even
+/// where the analysis holds σ at 1 (yes/no designs, `fix_sigma`), so a wrong
+/// equal-variance assumption shows up as bias, as it would in real data.
+pub fn truth_specs(design: &Design, observer: &Observer, trials: u32) -> Vec<ConditionSpec> {
+    let mut specs = condition_specs(design, observer, trials);
+    for s in &mut specs {
+        s.values.sigma = observer.sigma;
+    }
+    specs
+}
+
+/// One condition spec per condition of the design, as the analysis sees it.
 pub fn condition_specs(design: &Design, observer: &Observer, trials: u32) -> Vec<ConditionSpec> {
     let (categories, boundary, fix_sigma, offsets) = match &design.response {
         Response::YesNo => (2, 1, true, Vec::new()),

@@ -6,7 +6,7 @@
 //! analysis would use, without lapses, so lapses show up as bias, as they would in data.
 
 use super::parallel::Kernel;
-use super::tally::{EstimateTally, Outcome, Quantity, QuantityTally};
+use super::tally::{EstimateTally, Outcome, Quantity, QuantityTally, TestTally};
 use crate::cells::cell_probabilities::{Order, cell_probabilities};
 use crate::cells::coarsening::BlockKind;
 use crate::cells::error::SpecError;
@@ -14,11 +14,13 @@ use crate::cells::information::precision;
 use crate::cells::likelihood::Counts;
 use crate::cells::newton::{FitOptions, Start, StopReason, fit};
 use crate::cells::observation_model::ObservationModel;
-use crate::cells::spec::{BaseRateLink, Role};
 use crate::design::Design;
-use crate::design::model::condition_specs;
+use crate::design::model::{condition_specs, truth_specs};
+use crate::design::quantities::reported_quantities;
 use crate::fit::RateCorrection;
+use crate::infer::{Sided, likelihood_ratio_test, signed_root_test, wald_test};
 use crate::model::Observer;
+use crate::power::Contrast;
 use crate::simulate::{ReplicateRng, multinomial_into};
 
 /// Which natural quantity of which condition a tally slot holds.
@@ -28,9 +30,18 @@ struct Slot {
     quantity: Quantity,
 }
 
+/// A hypothesis ready to test: its contrast and its restricted (null) model.
+#[derive(Debug, Clone)]
+struct PreparedTest {
+    contrast: Contrast,
+    restricted: ObservationModel,
+}
+
 /// Everything one general scenario fixes.
 #[derive(Debug, Clone)]
 pub struct CellsKernel {
+    tests: Vec<PreparedTest>,
+    alpha: f64,
     fit_model: ObservationModel,
     /// Cell probabilities of every block under the true model.
     probabilities: Vec<Vec<f64>>,
@@ -50,7 +61,29 @@ impl CellsKernel {
         correction: RateCorrection,
         z_crit: f64,
     ) -> Result<Self, SpecError> {
-        let truth = ObservationModel::new(condition_specs(design, observer, trials))?;
+        Self::with_tests(
+            design,
+            observer,
+            trials,
+            correction,
+            z_crit,
+            &|_| Vec::new(),
+            0.05,
+        )
+    }
+
+    /// As [`CellsKernel::new`], also testing the contrasts `tests` gives for the fit model
+    /// at level `alpha`.
+    pub fn with_tests(
+        design: &Design,
+        observer: &Observer,
+        trials: u32,
+        correction: RateCorrection,
+        z_crit: f64,
+        tests: &dyn Fn(&ObservationModel) -> Vec<Contrast>,
+        alpha: f64,
+    ) -> Result<Self, SpecError> {
+        let truth = ObservationModel::new(truth_specs(design, observer, trials))?;
         let mut analysis = condition_specs(design, observer, trials);
         analysis.iter_mut().for_each(|c| c.lapse = None);
         let fit_model = ObservationModel::new(analysis)?;
@@ -67,7 +100,19 @@ impl CellsKernel {
             .map(|b| matches!(b.kind, BlockKind::PresentTrials | BlockKind::AbsentTrials))
             .collect();
         let (slots, template) = slots(&fit_model, z_crit);
+        let tests = tests(&fit_model)
+            .into_iter()
+            .map(|contrast| {
+                let restricted = ObservationModel::new(contrast.restricted.clone())?;
+                Ok(PreparedTest {
+                    contrast,
+                    restricted,
+                })
+            })
+            .collect::<Result<Vec<_>, SpecError>>()?;
         Ok(Self {
+            tests,
+            alpha,
             fit_model,
             probabilities,
             sizes,
@@ -85,67 +130,71 @@ impl CellsKernel {
     }
 }
 
-/// The estimated natural quantities, one slot each: d′ and c of every condition (once when
-/// shared), σ when estimated, π when estimated. The first two slots are d′ and c of the
-/// first condition, as the tally's correlation expects.
+/// The estimated natural quantities, one slot each, by the shared rule of
+/// [`reported_quantities`] (so `explore` and `run` rows line up).
 fn slots(model: &ObservationModel, z_crit: f64) -> (Vec<Slot>, Vec<QuantityTally>) {
-    let specs = model.conditions();
-    let many = specs.len() > 1;
-    let mut slots = Vec::new();
-    let mut tallies = Vec::new();
-    let mut add = |j: usize, quantity: Quantity, truth: f64, shared: bool| {
-        let label = (many && !shared).then(|| specs[j].name.clone());
-        slots.push(Slot {
-            condition: j,
-            quantity,
-        });
-        tallies.push(QuantityTally::new(quantity, truth, z_crit).in_condition(label));
-    };
-    for (j, spec) in specs.iter().enumerate() {
-        let v = &spec.values;
-        let r = &spec.roles;
-        for (quantity, role, truth) in [
-            (Quantity::DPrime, r.d_prime, v.d_prime),
-            (Quantity::Criterion, r.criterion, v.criterion),
-            (Quantity::Sigma, r.sigma, v.sigma),
-        ] {
-            let shared = role == Role::Shared;
-            if role != Role::Fixed && (!shared || j == 0) {
-                add(j, quantity, truth, shared);
+    reported_quantities(model.conditions())
+        .into_iter()
+        .map(|q| {
+            (
+                Slot {
+                    condition: q.condition,
+                    quantity: q.quantity,
+                },
+                QuantityTally::new(q.quantity, q.truth, z_crit).in_condition(q.label),
+            )
+        })
+        .unzip()
+}
+
+impl CellsKernel {
+    /// Wald and likelihood-ratio decisions for one test; a test that cannot be computed
+    /// (restricted fit failed, SE not finite) does not reject.
+    fn test(
+        &self,
+        t: &PreparedTest,
+        counts: &Counts,
+        theta: &[f64],
+        log_likelihood: f64,
+        covariance: &nalgebra::DMatrix<f64>,
+    ) -> (bool, bool) {
+        let c = &t.contrast;
+        let (est, se) = c.wald(theta, covariance);
+        let wald = wald_test(est, se, c.null, c.sided, self.alpha).is_ok_and(|o| o.reject);
+        let lr = match fit(&t.restricted, counts, Start::Hypothesised, &self.options) {
+            Ok(r) if r.stop == StopReason::Converged => {
+                let outcome = match c.sided {
+                    Sided::TwoSided => {
+                        likelihood_ratio_test(log_likelihood, r.log_likelihood, 1, self.alpha)
+                    }
+                    sided => signed_root_test(
+                        log_likelihood,
+                        r.log_likelihood,
+                        est,
+                        c.null,
+                        sided,
+                        self.alpha,
+                    ),
+                };
+                outcome.is_ok_and(|o| o.reject)
             }
-        }
-        if spec
-            .record
-            .base_rate_knowledge()
-            .is_some_and(|k| k.is_free())
-        {
-            let shared = r.base_rate == BaseRateLink::Shared;
-            if !shared || j == 0 {
-                add(j, Quantity::BaseRate, v.base_rate, shared);
-            }
-        }
+            _ => false,
+        };
+        (wald, lr)
     }
-    // Keep d′ and c of the first condition in front, in that order.
-    let order: Vec<usize> = {
-        let mut idx: Vec<usize> = (0..slots.len()).collect();
-        idx.sort_by_key(|&i| match (slots[i].condition, slots[i].quantity) {
-            (0, Quantity::DPrime) => 0,
-            (0, Quantity::Criterion) => 1,
-            _ => 2 + i,
-        });
-        idx
-    };
-    (
-        order.iter().map(|&i| slots[i]).collect(),
-        order.iter().map(|&i| tallies[i].clone()).collect(),
-    )
 }
 
 impl Kernel for CellsKernel {
     type Tally = EstimateTally;
 
     fn tally(&self) -> EstimateTally {
-        EstimateTally::new(self.template.clone())
+        let mut t = EstimateTally::new(self.template.clone());
+        t.tests = self
+            .tests
+            .iter()
+            .map(|p| TestTally::new(p.contrast.name.clone(), p.contrast.null_is_true()))
+            .collect();
+        t
     }
 
     fn replicate(&self, rng: &mut ReplicateRng, tally: &mut EstimateTally) {
@@ -213,6 +262,22 @@ impl Kernel for CellsKernel {
             return tally.push_unfitted(Outcome::Degenerate, extreme, 1.0);
         }
         tally.push_fit(&values, extreme, 1.0);
+        if !self.tests.is_empty() {
+            let rejections: Vec<(bool, bool)> = self
+                .tests
+                .iter()
+                .map(|t| {
+                    self.test(
+                        t,
+                        &counts,
+                        &result.theta,
+                        result.log_likelihood,
+                        &prec.covariance,
+                    )
+                })
+                .collect();
+            tally.push_rejections(&rejections, 1.0);
+        }
     }
 
     fn merge(&self, into: &mut EstimateTally, other: EstimateTally) {

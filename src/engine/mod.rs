@@ -13,7 +13,7 @@ pub use summary::{DatasetSummary, Figure, Method, QuantitySummary, ScenarioSumma
 pub use tally::Quantity;
 
 use crate::analytic::exact;
-use crate::design::Response;
+use crate::design::{Design, Response};
 use crate::model::normal;
 use crate::plan::{Plan, Scenario};
 use cells_kernel::CellsKernel;
@@ -45,6 +45,10 @@ pub enum RunError {
         "design \"{design}\" is not a single-condition yes/no design with a full record; --exact covers those only"
     )]
     ExactNeedsYesNo { design: String },
+    #[error(
+        "--exact enumerates estimates only; hypothesis tests need simulation: drop --exact or the [[hypothesis]] tables"
+    )]
+    ExactWithHypotheses,
     #[error("--experiments must be at least 1")]
     NoExperiments,
     #[error("design \"{design}\": {message}")]
@@ -69,6 +73,9 @@ pub fn total_replicates(plan: &Plan, options: RunOptions) -> u64 {
 pub fn preflight(plan: &Plan, options: RunOptions) -> Result<(), RunError> {
     if !options.exact {
         return Ok(());
+    }
+    if !plan.hypotheses.is_empty() {
+        return Err(RunError::ExactWithHypotheses);
     }
     for s in plan.scenarios() {
         let design = &plan.designs[s.design];
@@ -102,8 +109,44 @@ pub fn run_plan(
         .collect()
 }
 
-/// Runs one scenario.
+/// Whether any plan hypothesis can be tested on this design (it then runs through the
+/// general path, which fits the restricted models the likelihood-ratio tests need).
+pub fn tests_apply(plan: &Plan, design: &Design) -> bool {
+    if plan.hypotheses.is_empty() {
+        return false;
+    }
+    let trials = design.trials[0];
+    crate::design::model::observation_model(design, &plan.observer, trials)
+        .map(|m| !crate::power::contrasts_for(plan, design, &m).is_empty())
+        .unwrap_or(false)
+}
+
+/// Runs one scenario, with the expected-information SE beside every simulated figure.
 pub fn run_scenario(
+    plan: &Plan,
+    scenario: &Scenario,
+    options: RunOptions,
+    progress: &(dyn Fn(u64) + Sync),
+) -> Result<ScenarioSummary, RunError> {
+    let mut summary = simulate_scenario(plan, scenario, options, progress)?;
+    let design = &plan.designs[scenario.design];
+    let info = crate::analytic::information::DesignInformation::new(plan, design)
+        .and_then(|d| d.at(scenario.trials, false));
+    if let Ok(info) = info {
+        for q in &mut summary.quantities {
+            let label = q.label();
+            q.asymptotic_se = info
+                .quantities
+                .iter()
+                .find(|a| a.label() == label)
+                .and_then(|a| a.se);
+        }
+    }
+    Ok(summary)
+}
+
+/// Simulates (or enumerates) one scenario.
+fn simulate_scenario(
     plan: &Plan,
     scenario: &Scenario,
     options: RunOptions,
@@ -112,13 +155,15 @@ pub fn run_scenario(
     let design = &plan.designs[scenario.design];
     let z_crit = z_critical(plan.study.confidence);
     let study = &plan.study;
-    if !design.is_single_table() {
-        let kernel = CellsKernel::new(
+    if !design.is_single_table() || tests_apply(plan, design) {
+        let kernel = CellsKernel::with_tests(
             design,
             &plan.observer,
             scenario.trials,
             study.rate_correction,
             z_crit,
+            &|model| crate::power::contrasts_for(plan, design, model),
+            study.alpha,
         )
         .map_err(|e| RunError::Model {
             design: design.name.clone(),

@@ -34,7 +34,6 @@ pub fn rating_truths(
     sigma: f64,
     fix_sigma: bool,
 ) -> Vec<(Quantity, f64)> {
-    let sigma = if fix_sigma { 1.0 } else { sigma };
     let d_a = d_prime / ((1.0 + sigma * sigma) / 2.0).sqrt();
     let mut out = vec![
         (Quantity::DPrime, d_prime),
@@ -59,7 +58,8 @@ impl RatingKernel {
         z_crit: f64,
     ) -> Result<Self, ParamsError> {
         let k = scale.categories;
-        let sigma = if scale.fix_sigma { 1.0 } else { observer.sigma };
+        // The animal's σ generates the data even when the analysis holds σ at 1.
+        let sigma = observer.sigma;
         // Absolute criteria: k_j = c_j + d′/2, the scale shifted to the condition's criterion.
         let shift = condition.criterion - scale.criteria[scale.boundary - 1];
         let absolute: Vec<f64> = scale

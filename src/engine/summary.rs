@@ -46,9 +46,21 @@ pub struct QuantitySummary {
     pub bias: Figure,
     pub sd: Figure,
     pub rmse: Figure,
+    /// The SE the expected Fisher information predicts (`None` when it has none to give:
+    /// not identified, or a derived rating measure).
+    pub asymptotic_se: Option<f64>,
     pub mean_se: Figure,
     pub coverage: Share,
     pub mean_width: Figure,
+}
+
+/// Rejection rates of one hypothesis: its power, or its type-I error when the null is true.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct TestSummary {
+    pub hypothesis: String,
+    pub null_true: bool,
+    pub wald: Share,
+    pub likelihood_ratio: Share,
 }
 
 /// Shares of datasets by outcome.
@@ -72,6 +84,8 @@ pub struct ScenarioSummary {
     /// Correlation of d̂′ and ĉ across datasets.
     pub correlation: Figure,
     pub datasets: DatasetSummary,
+    /// Power (or type-I error) of each hypothesis this design can test.
+    pub tests: Vec<TestSummary>,
 }
 
 impl QuantitySummary {
@@ -130,6 +144,16 @@ pub fn summarise(
         quantities,
         correlation,
         datasets: datasets(&tally.datasets, exact),
+        tests: tally
+            .tests
+            .iter()
+            .map(|t| TestSummary {
+                hypothesis: t.hypothesis.clone(),
+                null_true: t.null_true,
+                wald: share(t.wald, tally.datasets.total, exact),
+                likelihood_ratio: share(t.likelihood_ratio, tally.datasets.total, exact),
+            })
+            .collect(),
     }
 }
 
@@ -159,6 +183,7 @@ fn quantity(q: &QuantityTally, exact: bool) -> QuantitySummary {
             q.squared_error.mc_se(exact) / (2.0 * rmse_value),
         ),
         mean,
+        asymptotic_se: None,
         mean_se: figure(q.se.mean(), q.se.mc_se(exact)),
         coverage: share(q.covered, q.estimate_weight(), exact),
         mean_width: figure(q.width.mean(), q.width.mc_se(exact)),

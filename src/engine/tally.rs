@@ -126,10 +126,33 @@ pub struct DatasetWeights {
     pub not_converged: f64,
 }
 
+/// Rejections of one hypothesis, as weights.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TestTally {
+    pub hypothesis: String,
+    /// Whether the simulated truth satisfies the null (rejections are then type-I errors).
+    pub null_true: bool,
+    pub wald: f64,
+    pub likelihood_ratio: f64,
+}
+
+impl TestTally {
+    pub fn new(hypothesis: String, null_true: bool) -> Self {
+        Self {
+            hypothesis,
+            null_true,
+            wald: 0.0,
+            likelihood_ratio: 0.0,
+        }
+    }
+}
+
 /// Everything a scenario accumulates.
 #[derive(Debug, Clone, PartialEq)]
 pub struct EstimateTally {
     pub quantities: Vec<QuantityTally>,
+    /// Hypothesis tests, when the plan has any this design can test.
+    pub tests: Vec<TestTally>,
     /// (d̂′, ĉ) pairs, for how strongly sensitivity and bias trade off.
     pub pair: CoMoments,
     pub datasets: DatasetWeights,
@@ -147,6 +170,7 @@ impl EstimateTally {
     pub fn new(quantities: Vec<QuantityTally>) -> Self {
         Self {
             quantities,
+            tests: Vec::new(),
             pair: CoMoments::default(),
             datasets: DatasetWeights::default(),
         }
@@ -161,6 +185,19 @@ impl EstimateTally {
             q.push(est, se, w);
         }
         self.pair.push(values[0].0, values[1].0, w);
+    }
+
+    /// Records which tests rejected (Wald, likelihood ratio), in the order of `tests`.
+    #[inline]
+    pub fn push_rejections(&mut self, rejections: &[(bool, bool)], w: f64) {
+        for (t, &(wald, lr)) in self.tests.iter_mut().zip(rejections) {
+            if wald {
+                t.wald += w;
+            }
+            if lr {
+                t.likelihood_ratio += w;
+            }
+        }
     }
 
     /// Records a dataset that gave no usable fit.
@@ -187,6 +224,10 @@ impl EstimateTally {
     pub fn merge(&mut self, other: Self) {
         for (a, b) in self.quantities.iter_mut().zip(&other.quantities) {
             a.merge(b);
+        }
+        for (a, b) in self.tests.iter_mut().zip(&other.tests) {
+            a.wald += b.wald;
+            a.likelihood_ratio += b.likelihood_ratio;
         }
         self.pair.merge(&other.pair);
         let (d, o) = (&mut self.datasets, other.datasets);

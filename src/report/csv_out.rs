@@ -4,7 +4,7 @@ use crate::engine::ScenarioSummary;
 use crate::plan::Plan;
 
 /// Column names, in order.
-pub const COLUMNS: [&str; 29] = [
+pub const COLUMNS: [&str; 30] = [
     "design",
     "record",
     "trials",
@@ -19,6 +19,7 @@ pub const COLUMNS: [&str; 29] = [
     "bias_mc_se",
     "sd",
     "sd_mc_se",
+    "asymptotic_se",
     "rmse",
     "rmse_mc_se",
     "mean_se",
@@ -62,6 +63,7 @@ pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> Result<Vec<u8>, csv
                 num(q.bias.mc_se),
                 num(q.sd.value),
                 num(q.sd.mc_se),
+                q.asymptotic_se.map_or_else(String::new, num),
                 num(q.rmse.value),
                 num(q.rmse.mc_se),
                 num(q.mean_se.value),

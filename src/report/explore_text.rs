@@ -63,13 +63,12 @@ fn design_block(out: &mut String, plan: &Plan, scan: &DesignScan) {
         return;
     };
     let mut header: Vec<String> = vec!["trials".into()];
-    header.extend(first.quantities.iter().map(|q| {
-        let label = match &q.condition {
-            Some(c) => format!("{}[{c}]", q.quantity.label()),
-            None => q.quantity.label().to_string(),
-        };
-        format!("SE({label})")
-    }));
+    header.extend(
+        first
+            .quantities
+            .iter()
+            .map(|q| format!("SE({})", q.label())),
+    );
     header.extend(["r(d′, c)", "condition no.", "verdict"].map(String::from));
     let mut t = new_table(header.iter().map(String::as_str).collect());
     for row in &scan.rows {
@@ -178,7 +177,8 @@ pub fn reading(plan: &Plan, scan: &DesignScan) -> String {
             "|r(d′, c)| stays at {hi:.2} at every count: more trials do not remove the trade-off"
         ),
         None if rs.len() == rows.len() => format!(
-            "|r(d′, c)| stays between {lo:.2} and {hi:.2} up to {} trials: more trials do not remove the trade-off",
+            "|r(d′, c)| is {:.2} at {} trials ({lo:.2} to {hi:.2} over the scan): more trials do not bring it below {TARGET_ABS_CORR}",
+            rs[rs.len() - 1],
             last.trials
         ),
         None => format!(
@@ -200,18 +200,24 @@ pub fn reading(plan: &Plan, scan: &DesignScan) -> String {
 
 /// A warning when some counts are only weakly identified, with the worst figures.
 pub fn weak_warning(scan: &DesignScan) -> Option<String> {
-    let weak: Vec<&ScenarioInformation> = scan
+    let weak: Vec<(u32, f64, f64)> = scan
         .rows
         .iter()
-        .filter(|r| matches!(r.verdict, Verdict::Weak { .. }))
+        .filter_map(|r| match r.verdict {
+            Verdict::Weak {
+                condition_number,
+                max_abs_corr,
+            } => Some((r.trials, condition_number, max_abs_corr)),
+            _ => None,
+        })
         .collect();
-    let (first, last) = (weak.first()?, weak.last()?);
-    let kappa = weak.iter().map(|r| r.condition_number).fold(0.0, f64::max);
-    let corr = weak.iter().map(|r| r.max_abs_corr).fold(0.0, f64::max);
-    let span = if first.trials == last.trials {
-        format!("at {} trials", first.trials)
+    let (first, last) = (weak.first()?.0, weak.last()?.0);
+    let kappa = weak.iter().map(|w| w.1).fold(0.0, f64::max);
+    let corr = weak.iter().map(|w| w.2).fold(0.0, f64::max);
+    let span = if first == last {
+        format!("at {first} trials")
     } else {
-        format!("from {} to {} trials", first.trials, last.trials)
+        format!("from {first} to {last} trials")
     };
     Some(format!(
         "{} is only weakly identified {span} (condition number up to {}, |correlation| between estimates up to {corr:.2}): \
@@ -292,4 +298,101 @@ pub fn render_json(plan: &Plan, scans: &[DesignScan]) -> serde_json::Result<Vec<
     let mut bytes = serde_json::to_vec_pretty(&doc)?;
     bytes.push(b'\n');
     Ok(bytes)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analytic::information::AsymptoticSe;
+    use crate::engine::Quantity;
+
+    fn row(trials: u32, se_c: f64, r: f64, verdict: Verdict) -> ScenarioInformation {
+        let q = |quantity, se| AsymptoticSe {
+            quantity,
+            condition: None,
+            truth: 0.0,
+            se: Some(se),
+        };
+        ScenarioInformation {
+            trials,
+            dim: 2,
+            rank: 2,
+            condition_number: 2.0,
+            max_abs_corr: r.abs(),
+            verdict,
+            quantities: vec![
+                q(Quantity::DPrime, 2.0 * se_c),
+                q(Quantity::Criterion, se_c),
+            ],
+            corr_d_prime_criterion: Some(r),
+            profile: None,
+        }
+    }
+
+    fn plan() -> Plan {
+        let text = "[study]\ntitle = \"t (invented)\"\nseed = 1\n[observer]\nd_prime = 1.0\n\
+                    criterion = 0.0\n[[design]]\nname = \"d\"\npresence = 0.5\ntrials = [10]\n";
+        Plan::from_str(std::path::Path::new("t.toml"), text).unwrap()
+    }
+
+    fn scan(rows: Vec<ScenarioInformation>) -> DesignScan {
+        DesignScan {
+            design: "d".into(),
+            record: "yes/no".into(),
+            parameters: vec!["d′".into(), "c".into()],
+            rows,
+        }
+    }
+
+    #[test]
+    fn targets_are_read_from_the_first_count_that_holds_for_good() {
+        let weak = Verdict::Weak {
+            condition_number: 2e6,
+            max_abs_corr: 0.97,
+        };
+        let rows = vec![
+            row(10, 0.30, -0.97, weak.clone()),
+            row(20, 0.12, -0.40, Verdict::Identified),
+            row(40, 0.20, -0.60, Verdict::Identified),
+            row(80, 0.10, -0.45, Verdict::Identified),
+            row(160, 0.05, -0.30, Verdict::Identified),
+        ];
+        let s = scan(rows);
+        let text = reading(&plan(), &s);
+        // z₀.₉₇₅·0.12 < 0.25 at 20 trials, but 40 trials breaks it: the target holds from 80.
+        assert!(
+            text.contains("c is pinned to ±0.25 (95% half-width) from 80 trials"),
+            "{text}"
+        );
+        assert!(
+            text.contains("|r(d′, c)| is below 0.5 from 80 trials"),
+            "{text}"
+        );
+        assert!(
+            text.contains("identified from 20 trials on, not below"),
+            "{text}"
+        );
+        let w = weak_warning(&s).unwrap();
+        assert!(
+            w.contains("at 10 trials") && w.contains("2.0e6") && w.contains("0.97"),
+            "{w}"
+        );
+        assert!(weak_warning(&scan(vec![row(10, 0.1, 0.0, Verdict::Identified)])).is_none());
+    }
+
+    #[test]
+    fn a_correlation_that_never_moves_is_reported_as_such() {
+        let rows = (1..=4)
+            .map(|k| row(10 * k, 0.4 / f64::from(k), -0.54, Verdict::Identified))
+            .collect();
+        let text = reading(&plan(), &scan(rows));
+        assert!(
+            text.contains("|r(d′, c)| stays at 0.54 at every count"),
+            "{text}"
+        );
+        assert!(
+            text.contains("both targets together: never up to 40 trials"),
+            "{text}"
+        );
+    }
 }

@@ -13,11 +13,16 @@ struct Document<'a> {
     plan: &'a Plan,
     results: &'a [ScenarioSummary],
     comparisons: Vec<super::comparison::Comparison>,
+    searches: &'a [crate::power::search::SearchResult],
     caution: &'static str,
 }
 
 /// The JSON bytes of a run (pretty-printed, newline-terminated).
-pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> serde_json::Result<Vec<u8>> {
+pub fn render(
+    plan: &Plan,
+    summaries: &[ScenarioSummary],
+    searches: &[crate::power::search::SearchResult],
+) -> serde_json::Result<Vec<u8>> {
     let doc = Document {
         tool: "vigil",
         version: env!("CARGO_PKG_VERSION"),
@@ -25,6 +30,7 @@ pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> serde_json::Result<
         plan,
         results: summaries,
         comparisons: super::comparison::comparisons(plan, summaries),
+        searches,
         caution: super::CAUTION,
     };
     let mut bytes = serde_json::to_vec_pretty(&doc)?;

@@ -7,11 +7,14 @@ pub mod comparison;
 pub mod csv_out;
 pub mod explore_text;
 pub mod format;
+pub mod ideal_scan_text;
+pub mod ideal_text;
 pub mod json_out;
 pub mod output_file;
 pub mod reading;
 pub mod style;
 pub mod terminal;
+pub mod verdict;
 
 pub use output_file::PendingFile;
 

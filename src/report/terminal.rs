@@ -77,14 +77,32 @@ fn design_block(out: &mut String, plan: &Plan, design: &Design, rows: &[&Scenari
             if s.fix_sigma { ", σ fixed at 1" } else { "" }
         ),
     };
-    let _ = writeln!(
-        out,
-        "■ {}  ({detail}; stimulus present on {:.0}% of trials)",
-        design.name,
-        100.0 * design.presence
-    );
+    let presence = if design.conditions.len() == 1 {
+        format!(
+            "stimulus present on {:.0}% of trials",
+            100.0 * design.presence
+        )
+    } else {
+        let each: Vec<String> = design
+            .conditions
+            .iter()
+            .map(|c| format!("{} {:.0}%", c.name, 100.0 * c.presence))
+            .collect();
+        format!("conditions: {}", each.join(", "))
+    };
+    let record = match design.record {
+        crate::design::RecordKind::Full => String::new(),
+        _ => format!("; {}", design.record_label()),
+    };
+    let _ = writeln!(out, "■ {}  ({detail}{record}; {presence})", design.name);
     let _ = writeln!(out, "{}", precision_table(rows, plan.study.confidence));
     let _ = writeln!(out, "{}", tradeoff_table(rows));
+    if rows.iter().any(|s| !s.tests.is_empty()) {
+        let _ = writeln!(out, "{}", power_table(rows, plan.study.alpha));
+        for line in type_one_notes(rows, plan.study.alpha) {
+            let _ = writeln!(out, "{line}");
+        }
+    }
     let _ = writeln!(
         out,
         "Reading: {}",
@@ -103,6 +121,7 @@ fn precision_table(rows: &[&ScenarioSummary], level: f64) -> Table {
         "mean",
         "bias",
         "SD",
+        "asympt. SE",
         "RMSE",
         "mean SE",
         &cover,
@@ -127,6 +146,7 @@ fn precision_table(rows: &[&ScenarioSummary], level: f64) -> Table {
                 figure(&q.mean, 3),
                 figure(&q.bias, 3),
                 figure(&q.sd, 3),
+                q.asymptotic_se.map_or_else(|| "–".into(), |x| number(x, 3)),
                 figure(&q.rmse, 3),
                 figure(&q.mean_se, 3),
                 share(&q.coverage),
@@ -157,4 +177,58 @@ fn tradeoff_table(rows: &[&ScenarioSummary]) -> Table {
     }
     right_align(&mut t, 0..1);
     t
+}
+
+fn power_table(rows: &[&ScenarioSummary], alpha: f64) -> Table {
+    let mut t = new_table(vec![
+        "trials",
+        "hypothesis",
+        "power: likelihood ratio",
+        "power: Wald",
+    ]);
+    for s in rows {
+        for (i, test) in s.tests.iter().enumerate() {
+            let label = if test.null_true {
+                format!("{} (null true: rate vs α = {alpha})", test.hypothesis)
+            } else {
+                test.hypothesis.clone()
+            };
+            t.add_row(vec![
+                if i == 0 {
+                    s.scenario.trials.to_string()
+                } else {
+                    String::new()
+                },
+                label,
+                share(&test.likelihood_ratio),
+                share(&test.wald),
+            ]);
+        }
+    }
+    right_align(&mut t, 0..1);
+    t
+}
+
+/// Where a true null is rejected at a rate whose Wilson interval excludes α.
+fn type_one_notes(rows: &[&ScenarioSummary], alpha: f64) -> Vec<String> {
+    let mut out = Vec::new();
+    for s in rows {
+        for test in s.tests.iter().filter(|t| t.null_true) {
+            for (name, share) in [
+                ("likelihood-ratio", &test.likelihood_ratio),
+                ("Wald", &test.wald),
+            ] {
+                if share.low > alpha || share.high < alpha {
+                    out.push(format!(
+                        "Note: at {} trials the {name} test of \"{}\" rejects a true null in {:.1}% of experiments, not {:.0}%: its p-values are off at this count.",
+                        s.scenario.trials,
+                        test.hypothesis,
+                        100.0 * share.value,
+                        100.0 * alpha
+                    ));
+                }
+            }
+        }
+    }
+    out
 }
