@@ -28,6 +28,8 @@ pub enum AppError {
     #[error("{0}")]
     Input(String),
     #[error("{0}")]
+    Groups(#[from] crate::groups::GroupError),
+    #[error("{0}")]
     Internal(String),
 }
 
@@ -35,7 +37,11 @@ impl AppError {
     /// The documented exit code of this failure.
     pub fn exit_code(&self) -> i32 {
         match self {
-            Self::Plan(_) | Self::Run(_) | Self::Output { .. } | Self::Input(_) => 2,
+            Self::Plan(_)
+            | Self::Run(_)
+            | Self::Output { .. }
+            | Self::Input(_)
+            | Self::Groups(_) => 2,
             Self::Internal(_) => 1,
         }
     }
@@ -109,7 +115,12 @@ pub struct PreparedRun {
 impl PreparedRun {
     /// Replicates the run will simulate (for a progress bar).
     pub fn total_replicates(&self) -> u64 {
-        engine::total_replicates(&self.plan, self.options)
+        let groups = if !self.options.exact && self.plan.animals.is_some() {
+            crate::groups::total_group_replicates(&self.plan)
+        } else {
+            0
+        };
+        engine::total_replicates(&self.plan, self.options) + groups
     }
 }
 
@@ -148,18 +159,36 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
 pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<String, AppError> {
     let plan = &run.plan;
     let summaries = engine::run_plan(plan, run.options, progress)?;
-    let searches = if plan.targets.any(&plan.hypotheses) && !run.options.exact {
-        crate::power::search::search_plan(plan, progress)?
-    } else {
-        Vec::new()
+    // With [animals] the targets are judged at group level (the effort split), not for
+    // one idealised animal.
+    let searches =
+        if plan.targets.any(&plan.hypotheses) && !run.options.exact && plan.animals.is_none() {
+            crate::power::search::search_plan(plan, progress)?
+        } else {
+            Vec::new()
+        };
+    let groups = match (&plan.animals, run.options.exact) {
+        (Some(_), false) => Some(crate::groups::run_groups(plan, progress)?),
+        _ => None,
     };
-    write_outputs(plan, &summaries, &searches, run.csv, run.json)?;
+    write_outputs(
+        plan,
+        &summaries,
+        &searches,
+        groups.as_ref(),
+        run.csv,
+        run.json,
+    )?;
     let mut text = report::terminal::render(plan, &summaries);
     let verdict = report::verdict::render(&searches, plan.study.max_trials);
     if !verdict.is_empty() {
         // The verdict goes before the closing caution.
         let at = text.rfind("Caution:").unwrap_or(text.len());
         text.insert_str(at, &verdict);
+    }
+    if let Some(g) = &groups {
+        let at = text.rfind("Caution:").unwrap_or(text.len());
+        text.insert_str(at, &report::groups_text::render_section(plan, g));
     }
     Ok(text)
 }
@@ -168,6 +197,7 @@ fn write_outputs(
     plan: &Plan,
     summaries: &[ScenarioSummary],
     searches: &[crate::power::search::SearchResult],
+    groups: Option<&crate::groups::GroupReport>,
     csv: Option<PendingFile>,
     json: Option<PendingFile>,
 ) -> Result<(), AppError> {
@@ -181,7 +211,7 @@ fn write_outputs(
     };
     let json_bytes = match &json {
         Some(_) => Some(
-            report::json_out::render(plan, summaries, searches)
+            report::json_out::render(plan, summaries, searches, groups)
                 .map_err(|e| AppError::Internal(e.to_string()))?,
         ),
         None => None,

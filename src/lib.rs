@@ -15,6 +15,7 @@ pub mod cells;
 pub mod design;
 pub mod engine;
 pub mod fit;
+pub mod groups;
 pub mod infer;
 pub mod model;
 pub mod plan;

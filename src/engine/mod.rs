@@ -13,6 +13,7 @@ pub use summary::{DatasetSummary, Figure, Method, QuantitySummary, ScenarioSumma
 pub use tally::Quantity;
 
 use crate::analytic::exact;
+use crate::analytic::verdict::{Verdict, plain_verdict};
 use crate::design::{Design, Response};
 use crate::model::normal;
 use crate::plan::{Plan, Scenario};
@@ -130,9 +131,10 @@ pub fn run_scenario(
 ) -> Result<ScenarioSummary, RunError> {
     let mut summary = simulate_scenario(plan, scenario, options, progress)?;
     let design = &plan.designs[scenario.design];
-    let info = crate::analytic::information::DesignInformation::new(plan, design)
-        .and_then(|d| d.at(scenario.trials, false));
-    if let Ok(info) = info {
+    let Ok(information) = crate::analytic::information::DesignInformation::new(plan, design) else {
+        return Ok(summary);
+    };
+    if let Ok(info) = information.at(scenario.trials, false) {
         for q in &mut summary.quantities {
             let label = q.label();
             q.asymptotic_se = info
@@ -141,6 +143,26 @@ pub fn run_scenario(
                 .find(|a| a.label() == label)
                 .and_then(|a| a.se);
         }
+        summary.identifiability = match info.verdict {
+            Verdict::Identified => None,
+            Verdict::Weak { .. } => Some(plain_verdict(&info)),
+            // Not identified: profile-likelihood ranges instead of meaningless SEs.
+            Verdict::NotIdentified { .. } => {
+                information.at(scenario.trials, true).ok().map(|full| {
+                    let ranges: Vec<String> = full
+                        .profile
+                        .iter()
+                        .flatten()
+                        .map(|r| r.describe())
+                        .collect();
+                    format!(
+                        "{}; at the plan's confidence level the data are consistent with {}",
+                        plain_verdict(&full),
+                        ranges.join(" and ")
+                    )
+                })
+            }
+        };
     }
     Ok(summary)
 }

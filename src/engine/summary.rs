@@ -86,6 +86,9 @@ pub struct ScenarioSummary {
     pub datasets: DatasetSummary,
     /// Power (or type-I error) of each hypothesis this design can test.
     pub tests: Vec<TestSummary>,
+    /// The expected information's verdict in plain words when the design is weakly or not
+    /// identified (with profile-likelihood ranges of d′ and c when not identified).
+    pub identifiability: Option<String>,
 }
 
 impl QuantitySummary {
@@ -154,6 +157,7 @@ pub fn summarise(
                 likelihood_ratio: share(t.likelihood_ratio, tally.datasets.total, exact),
             })
             .collect(),
+        identifiability: None,
     }
 }
 

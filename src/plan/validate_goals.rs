@@ -276,11 +276,11 @@ fn animals(ctx: &Ctx, a: &RawAnimals, designs: &[Design]) -> Result<Animals, Pla
     let trial_cap = match &a.trial_cap {
         None => None,
         Some(c) => {
+            // The cap counts every trial an animal receives, across its conditions.
             let smallest = designs
                 .iter()
-                .filter_map(|d| d.trials.first())
+                .map(|d| d.trials[0] * d.conditions.len() as u32)
                 .min()
-                .copied()
                 .unwrap_or(2);
             let cap = *c.get_ref();
             if cap < i64::from(smallest) {

@@ -14,6 +14,8 @@ struct Document<'a> {
     results: &'a [ScenarioSummary],
     comparisons: Vec<super::comparison::Comparison>,
     searches: &'a [crate::power::search::SearchResult],
+    #[serde(skip_serializing_if = "Option::is_none")]
+    groups: Option<&'a crate::groups::GroupReport>,
     caution: &'static str,
 }
 
@@ -22,6 +24,7 @@ pub fn render(
     plan: &Plan,
     summaries: &[ScenarioSummary],
     searches: &[crate::power::search::SearchResult],
+    groups: Option<&crate::groups::GroupReport>,
 ) -> serde_json::Result<Vec<u8>> {
     let doc = Document {
         tool: "vigil",
@@ -31,6 +34,7 @@ pub fn render(
         results: summaries,
         comparisons: super::comparison::comparisons(plan, summaries),
         searches,
+        groups,
         caution: super::CAUTION,
     };
     let mut bytes = serde_json::to_vec_pretty(&doc)?;

@@ -7,6 +7,7 @@ pub mod comparison;
 pub mod csv_out;
 pub mod explore_text;
 pub mod format;
+pub mod groups_text;
 pub mod ideal_scan_text;
 pub mod ideal_text;
 pub mod json_out;

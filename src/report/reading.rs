@@ -13,6 +13,14 @@ pub fn reading(design: &Design, rows: &[&ScenarioSummary], level: f64) -> String
     let (Some(first), Some(last)) = (rows.first(), rows.last()) else {
         return format!("{}: nothing to report.", design.name);
     };
+    if let Some(verdict) = &last.identifiability
+        && verdict.starts_with("not identified")
+    {
+        return format!(
+            "{}: {verdict} (at {} trials). More trials cannot fix this: the record itself must change (know or census the base rate, or record more).",
+            design.name, last.scenario.trials
+        );
+    }
     let pct = 100.0 * level;
     let mut parts = vec![format!(
         "c is pinned to ±{} and d′ to ±{} at {} trials, ±{} and ±{} at {} trials ({pct:.0}% half-widths)",
@@ -54,6 +62,13 @@ pub fn reading(design: &Design, rows: &[&ScenarioSummary], level: f64) -> String
             "at {} trials {:.0}% of datasets hit a rate of 0 or 1, so rows up to there lean on the correction",
             s.scenario.trials,
             100.0 * s.datasets.extreme.value
+        ));
+    }
+    if let Some(s) = rows.iter().find(|s| s.identifiability.is_some()) {
+        parts.push(format!(
+            "warning at {} trials: {}",
+            s.scenario.trials,
+            s.identifiability.as_deref().unwrap_or_default()
         ));
     }
     if let Some(s) = rows.iter().find(|s| undercovers(s, level)) {

@@ -1,0 +1,372 @@
+//! The effort split: how to divide a budget between animals and trials per animal.
+//!
+//! 1. The approximation ([`super::effort_search`]) scans every trial count between the
+//!    design's smallest listed count and the cap (or `max_trials`): with a budget, the
+//!    animals it buys there and their power; with targets, the fewest animals that meet them
+//!    and their cost.
+//! 2. A short frontier of trial counts (the approximate best, the ends of the range and the
+//!    grid's counts, at most [`MAX_ROWS`]) is simulated in full: every row's power is a Monte
+//!    Carlo figure with its Wilson interval.
+//! 3. Best for the budget: the row with the highest simulated power of the weakest driving
+//!    test; the approximate best keeps its place unless another row beats it by more than
+//!    2 Monte Carlo SEs (the power curve is flat near its top, so noise must not pick).
+//!    Least cost: the approximate cheapest row gets more animals (+5%, at least 1, up to
+//!    [`MAX_BUMPS`] times) until the simulation confirms the targets; the answer is the
+//!    cheapest row whose simulation meets every target.
+
+use super::GroupError;
+use super::approximation::Approximation;
+use super::effort_search::{
+    Approximate, Goals, Search, best_for_budget, candidate_trials, goals, least_cost,
+};
+use super::grid::{DesignSetup, per_condition_cap, run_point};
+use super::summary::GroupSummary;
+use crate::design::goals::Budget;
+use crate::engine::{Figure, Share};
+use serde::Serialize;
+
+/// Most frontier rows simulated per mode.
+pub const MAX_ROWS: usize = 7;
+/// Most times the least-cost row is given more animals to confirm its targets.
+pub const MAX_BUMPS: usize = 8;
+
+/// A test that drives the search.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Goal {
+    pub name: String,
+    pub target: Option<f64>,
+}
+
+/// One allocation: animals × trials, its cost, approximate and simulated figures.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Allocation {
+    pub animals: u32,
+    /// Trials per condition.
+    pub trials: u32,
+    pub trials_per_animal: u32,
+    pub cost: f64,
+    /// Approximate power of each driving test.
+    pub approx_power: Vec<f64>,
+    /// Simulated power of each driving test (two-stage).
+    pub power: Vec<Share>,
+    pub criterion_half_width: Figure,
+    pub d_prime_half_width: Figure,
+    /// Whether the simulation meets every target (`None` without targets).
+    pub meets_targets: Option<bool>,
+    pub summary: GroupSummary,
+}
+
+impl Allocation {
+    /// The simulated power of the weakest driving test.
+    pub fn weakest(&self) -> Option<Share> {
+        self.power
+            .iter()
+            .copied()
+            .min_by(|a, b| a.value.total_cmp(&b.value))
+    }
+}
+
+/// The effort split of one design.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct EffortSplit {
+    pub budget: Budget,
+    /// Trials per condition searched: [smallest, largest].
+    pub trials_range: [u32; 2],
+    pub goals: Vec<Goal>,
+    pub criterion_half_width: Option<f64>,
+    pub d_prime_half_width: Option<f64>,
+    /// With a budget total: the most animals it buys at each frontier trial count.
+    pub budget_frontier: Vec<Allocation>,
+    /// Index of the best row of `budget_frontier`.
+    pub best_for_budget: Option<usize>,
+    /// With targets: the fewest animals that meet them at each frontier trial count.
+    pub target_frontier: Vec<Allocation>,
+    /// Index of the cheapest row of `target_frontier` that the simulation confirms.
+    pub least_cost: Option<usize>,
+    pub notes: Vec<String>,
+}
+
+/// Replicates the effort split of one design may simulate at most.
+pub fn max_replicates(setup: &DesignSetup) -> u64 {
+    let Some(budget) = setup.plan.budget else {
+        return 0;
+    };
+    let g = goals(setup);
+    let mut rows = 0;
+    if budget.total.is_some() && !g.tests.is_empty() {
+        rows += MAX_ROWS;
+    }
+    if g.has_targets() {
+        rows += MAX_ROWS + MAX_BUMPS;
+    }
+    rows as u64 * setup.plan.study.experiments
+}
+
+/// Simulations already run (grid cells and earlier rows), so no point is simulated twice.
+type Cache = Vec<((u32, u32), GroupSummary)>;
+
+struct Confirm<'a, 'b> {
+    setup: &'a DesignSetup<'b>,
+    goals: &'a Goals,
+    cache: Cache,
+    progress: &'a (dyn Fn(u64) + Sync),
+}
+
+impl Confirm<'_, '_> {
+    fn run(&mut self, a: &Approximate) -> Result<Allocation, GroupError> {
+        let key = (a.animals, a.trials);
+        let summary = match self.cache.iter().find(|(k, _)| *k == key) {
+            Some((_, s)) => s.clone(),
+            None => {
+                let plan = self.setup.plan;
+                let s = run_point(
+                    self.setup,
+                    a.animals,
+                    a.trials,
+                    plan.study.experiments,
+                    plan.study.seed,
+                    self.progress,
+                )?;
+                self.cache.push((key, s.clone()));
+                s
+            }
+        };
+        let power: Vec<Share> = self
+            .goals
+            .tests
+            .iter()
+            .map(|&i| summary.tests[i].two_stage)
+            .collect();
+        let g = self.goals;
+        let meets = g.has_targets().then(|| {
+            power
+                .iter()
+                .zip(&g.power)
+                .all(|(p, t)| t.is_none_or(|t| p.value >= t))
+                && g.criterion_half_width
+                    .is_none_or(|t| summary.criterion.half_width.value <= t)
+                && g.d_prime_half_width
+                    .is_none_or(|t| summary.d_prime.half_width.value <= t)
+        });
+        Ok(Allocation {
+            animals: a.animals,
+            trials: a.trials,
+            trials_per_animal: self.setup.trials_per_animal(a.trials),
+            cost: a.cost,
+            approx_power: a.power.clone(),
+            power,
+            criterion_half_width: summary.criterion.half_width,
+            d_prime_half_width: summary.d_prime.half_width,
+            meets_targets: meets,
+            summary,
+        })
+    }
+}
+
+/// The frontier's trial counts: the ends of the line, the best count and the grid's counts,
+/// thinned to [`MAX_ROWS`] by dropping the count with the closest neighbours (log scale).
+pub fn frontier_trials(line: &[u32], best: u32, grid: &[u32]) -> Vec<u32> {
+    let (Some(&first), Some(&last)) = (line.first(), line.last()) else {
+        return Vec::new();
+    };
+    let mut rows: Vec<u32> = vec![first, last, best];
+    rows.extend(grid.iter().filter(|t| line.contains(t)));
+    rows.sort_unstable();
+    rows.dedup();
+    while rows.len() > MAX_ROWS {
+        let gap = |i: usize| (f64::from(rows[i + 1]) / f64::from(rows[i - 1])).ln();
+        let drop = (1..rows.len() - 1)
+            .filter(|&i| rows[i] != best)
+            .min_by(|&i, &k| gap(i).total_cmp(&gap(k)));
+        match drop {
+            Some(i) => {
+                rows.remove(i);
+            }
+            None => break,
+        }
+    }
+    rows
+}
+
+/// Runs the effort split of one design; `Ok(Err(note))` says why there is none.
+pub fn effort_split(
+    setup: &DesignSetup,
+    grid: &[u32],
+    cache: Cache,
+    progress: &(dyn Fn(u64) + Sync),
+) -> Result<Result<EffortSplit, String>, GroupError> {
+    let plan = setup.plan;
+    let Some(budget) = plan.budget else {
+        return Ok(Err("no [budget] table, so no effort split".into()));
+    };
+    let goals = goals(setup);
+    if goals.tests.is_empty() && !goals.has_targets() {
+        return Ok(Err(
+            "no effort split: no hypothesis is off its null and no half-width target is set".into(),
+        ));
+    }
+    if budget.total.is_none() && !goals.has_targets() {
+        return Ok(Err(
+            "no effort split: give [budget] a total, or set a power or half-width target".into(),
+        ));
+    }
+    let design = setup.design;
+    let Some(approximation) = Approximation::new(design, &plan.observer, setup.population) else {
+        return Ok(Err(
+            "no effort split: the design's expected information could not be computed".into(),
+        ));
+    };
+    let cap = per_condition_cap(design, plan.animals.as_ref().and_then(|a| a.trial_cap));
+    let hi = cap
+        .unwrap_or(plan.study.max_trials)
+        .min(plan.study.max_trials);
+    let lo = design.trials.first().copied().unwrap_or(2).min(hi);
+    let trials = candidate_trials(design, lo, hi);
+    let search = Search::new(
+        &approximation,
+        &setup.tests,
+        &goals,
+        budget,
+        design.conditions.len() as u32,
+        plan.study.alpha,
+        plan.study.confidence,
+        &trials,
+    );
+    let mut split = EffortSplit {
+        budget,
+        trials_range: [lo, hi],
+        goals: goals
+            .tests
+            .iter()
+            .zip(&goals.power)
+            .map(|(&i, &target)| Goal {
+                name: setup.tests[i].name.clone(),
+                target,
+            })
+            .collect(),
+        criterion_half_width: goals.criterion_half_width,
+        d_prime_half_width: goals.d_prime_half_width,
+        budget_frontier: Vec::new(),
+        best_for_budget: None,
+        target_frontier: Vec::new(),
+        least_cost: None,
+        notes: Vec::new(),
+    };
+    let mut confirm = Confirm {
+        setup,
+        goals: &goals,
+        cache,
+        progress,
+    };
+    if budget.total.is_some() && !goals.tests.is_empty() {
+        budget_mode(&search, grid, &mut confirm, &mut split)?;
+    }
+    if goals.has_targets() {
+        target_mode(&search, grid, &mut confirm, &mut split)?;
+    }
+    Ok(Ok(split))
+}
+
+fn budget_mode(
+    search: &Search,
+    grid: &[u32],
+    confirm: &mut Confirm,
+    split: &mut EffortSplit,
+) -> Result<(), GroupError> {
+    let line = search.budget_line();
+    let Some(best) = best_for_budget(&line) else {
+        split.notes.push(format!(
+            "the budget buys fewer than {} animals at every trial count searched",
+            search.min_animals
+        ));
+        return Ok(());
+    };
+    let counts: Vec<u32> = line.iter().map(|a| a.trials).collect();
+    let rows = frontier_trials(&counts, line[best].trials, grid);
+    for n in &rows {
+        if let Some(a) = line.iter().find(|a| a.trials == *n) {
+            split.budget_frontier.push(confirm.run(a)?);
+        }
+    }
+    let rows = &split.budget_frontier;
+    let approx_best = rows.iter().position(|r| r.trials == line[best].trials);
+    let weakest = |i: usize| rows[i].weakest().map_or(f64::NEG_INFINITY, |s| s.value);
+    let mc_se = |i: usize| {
+        let p = weakest(i).clamp(0.0, 1.0);
+        (p * (1.0 - p) / rows[i].summary.studies.max(1) as f64).sqrt()
+    };
+    let simulated_best = (0..rows.len()).max_by(|&i, &k| weakest(i).total_cmp(&weakest(k)));
+    split.best_for_budget = match (approx_best, simulated_best) {
+        (Some(a), Some(s)) if weakest(s) - weakest(a) > 2.0 * mc_se(a).hypot(mc_se(s)) => Some(s),
+        (Some(a), _) => Some(a),
+        (None, s) => s,
+    };
+    Ok(())
+}
+
+fn target_mode(
+    search: &Search,
+    grid: &[u32],
+    confirm: &mut Confirm,
+    split: &mut EffortSplit,
+) -> Result<(), GroupError> {
+    let line = search.target_line();
+    let Some(best) = least_cost(&line) else {
+        split.notes.push(format!(
+            "no allocation up to {} animals meets the targets at any trial count searched",
+            super::effort_search::MAX_ANIMALS
+        ));
+        return Ok(());
+    };
+    let counts: Vec<u32> = line.iter().map(|a| a.trials).collect();
+    let rows = frontier_trials(&counts, line[best].trials, grid);
+    for n in &rows {
+        let Some(a) = line.iter().find(|a| a.trials == *n) else {
+            continue;
+        };
+        let mut row = confirm.run(a)?;
+        if *n == line[best].trials {
+            // Confirm the approximate optimum by simulation, adding animals if it falls short.
+            let candidate = search.candidate(*n);
+            let mut bumps = 0;
+            while row.meets_targets == Some(false) && bumps < MAX_BUMPS {
+                let Some(c) = candidate else { break };
+                let more = (row.animals + row.animals.div_ceil(20).max(1))
+                    .min(super::effort_search::MAX_ANIMALS);
+                row = confirm.run(&search.evaluate(c, more))?;
+                bumps += 1;
+            }
+        }
+        split.target_frontier.push(row);
+    }
+    split.least_cost = (0..split.target_frontier.len())
+        .filter(|&i| split.target_frontier[i].meets_targets == Some(true))
+        .min_by(|&i, &k| {
+            let (a, b) = (&split.target_frontier[i], &split.target_frontier[k]);
+            a.cost.total_cmp(&b.cost).then(a.animals.cmp(&b.animals))
+        });
+    if split.least_cost.is_none() {
+        split.notes.push(
+            "no simulated allocation met every target; raise the cap, the budget or max_trials"
+                .into(),
+        );
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn frontier_keeps_ends_best_and_grid_within_the_row_limit() {
+        let line: Vec<u32> = (20..=200).collect();
+        let rows = frontier_trials(&line, 57, &[20, 40, 80, 160, 320]);
+        assert_eq!(rows, vec![20, 40, 57, 80, 160, 200]);
+        let many: Vec<u32> = (10..=30).step_by(2).collect();
+        let rows = frontier_trials(&line, 57, &many);
+        assert!(rows.len() <= MAX_ROWS);
+        assert!(rows.contains(&57) && rows.contains(&20) && rows.contains(&200));
+        assert!(frontier_trials(&[], 5, &[5]).is_empty());
+    }
+}

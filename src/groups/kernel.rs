@@ -1,0 +1,284 @@
+//! One simulated group study per replicate: draw every animal from the population, simulate
+//! and fit it, test the group, fit the pooled counts, and tally.
+//!
+//! All randomness of a replicate comes from that replicate's own stream, in a fixed order
+//! (animal 1's deviation, animal 1's counts, animal 2's …, then one separate two-population
+//! study per group-difference hypothesis), so results are bit-identical for any thread count.
+
+use super::animal::{AnimalEstimate, AnimalPath, PooledEstimate, criterion_index, d_prime_index};
+use super::approximation::t_quantile;
+use super::hypotheses::GroupTest;
+use super::population::{Deviation, Population};
+use crate::engine::parallel::Kernel;
+use crate::infer::Moments;
+use crate::simulate::ReplicateRng;
+
+/// Running sums for an estimate of a population mean.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct PrecisionTally {
+    pub estimate: Moments,
+    pub se: Moments,
+    pub half_width: Moments,
+    pub covered: u64,
+}
+
+impl PrecisionTally {
+    fn push(&mut self, est: f64, se: f64, half: f64, truth: f64) {
+        self.estimate.push(est, 1.0);
+        self.se.push(se, 1.0);
+        self.half_width.push(half, 1.0);
+        if (est - truth).abs() <= half {
+            self.covered += 1;
+        }
+    }
+
+    fn merge(&mut self, o: &Self) {
+        self.estimate.merge(&o.estimate);
+        self.se.merge(&o.se);
+        self.half_width.merge(&o.half_width);
+        self.covered += o.covered;
+    }
+}
+
+/// Rejections and failures of one hypothesis.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct TestTally {
+    pub two_stage_reject: u64,
+    /// Studies where the two-stage test had no answer (too few usable animals).
+    pub two_stage_failed: u64,
+    pub pooled_reject: u64,
+    /// Studies where the pooled fit failed.
+    pub pooled_failed: u64,
+    /// Rejections of the contrast's true value: false positives of each test.
+    pub two_stage_false: u64,
+    pub pooled_false: u64,
+}
+
+impl TestTally {
+    /// Records one study: each test against the hypothesis's null and against the truth.
+    fn record(&mut self, two_stage: [Option<bool>; 2], pooled: [Option<bool>; 2]) {
+        match two_stage[0] {
+            Some(r) => self.two_stage_reject += u64::from(r),
+            None => self.two_stage_failed += 1,
+        }
+        match pooled[0] {
+            Some(r) => self.pooled_reject += u64::from(r),
+            None => self.pooled_failed += 1,
+        }
+        self.two_stage_false += u64::from(two_stage[1] == Some(true));
+        self.pooled_false += u64::from(pooled[1] == Some(true));
+    }
+
+    fn merge(&mut self, o: &Self) {
+        self.two_stage_reject += o.two_stage_reject;
+        self.two_stage_failed += o.two_stage_failed;
+        self.pooled_reject += o.pooled_reject;
+        self.pooled_failed += o.pooled_failed;
+        self.two_stage_false += o.two_stage_false;
+        self.pooled_false += o.pooled_false;
+    }
+}
+
+/// Everything a grid cell accumulates.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct GroupTally {
+    pub studies: u64,
+    /// Studies with fewer than 2 usable animals (no group mean with an SE).
+    pub failed_studies: u64,
+    pub animals: u64,
+    pub animals_dropped: u64,
+    pub tests: Vec<TestTally>,
+    /// Group mean of the animals' ĉ (first condition), its SE s/√m and t interval.
+    pub criterion: PrecisionTally,
+    /// The same for d̂′.
+    pub d_prime: PrecisionTally,
+    /// Pooled ĉ and d̂′ with Wald intervals.
+    pub pooled_criterion: PrecisionTally,
+    pub pooled_d_prime: PrecisionTally,
+    pub pooled_failed: u64,
+}
+
+/// One group study of `animals` animals of one design at one trial count.
+#[derive(Debug, Clone)]
+pub struct GroupKernel<P: AnimalPath> {
+    path: P,
+    population: Population,
+    animals: u32,
+    tests: Vec<GroupTest>,
+    alpha: f64,
+    z_crit: f64,
+    /// t_{1−(1−level)/2, df} for df = 0..animals (entry 0 unused).
+    t_crit: Vec<f64>,
+    /// Population means of c and d′ in the first condition.
+    truth: (f64, f64),
+}
+
+/// What one simulated population gives: usable fits, drops, and the pooled fit.
+struct Study {
+    fits: Vec<AnimalEstimate>,
+    dropped: u64,
+    pooled: Option<PooledEstimate>,
+}
+
+impl<P: AnimalPath> GroupKernel<P> {
+    /// `truth` = population means (c, d′) of the first condition; `level` sets the intervals.
+    pub fn new(
+        path: P,
+        population: Population,
+        animals: u32,
+        tests: Vec<GroupTest>,
+        alpha: f64,
+        level: f64,
+        truth: (f64, f64),
+    ) -> Self {
+        let p = 1.0 - (1.0 - level) / 2.0;
+        let t_crit = (0..=animals)
+            .map(|df| t_quantile(p, f64::from(df.max(1))))
+            .collect();
+        Self {
+            path,
+            population,
+            animals,
+            tests,
+            alpha,
+            z_crit: crate::engine::z_critical(level),
+            t_crit,
+            truth,
+        }
+    }
+
+    fn study(&self, rng: &mut ReplicateRng, animals: u32, shift: f64) -> Study {
+        let mut pool = self.path.empty();
+        let mut fits = Vec::with_capacity(animals as usize);
+        let mut dropped = 0;
+        for _ in 0..animals {
+            let deviation: Deviation = self.population.draw(rng).shifted(shift);
+            let counts = self.path.simulate(rng, &deviation);
+            self.path.add(&mut pool, &counts);
+            match self.path.fit_animal(&counts) {
+                Some(e) => fits.push(e),
+                None => dropped += 1,
+            }
+        }
+        Study {
+            fits,
+            dropped,
+            pooled: self.path.fit_pooled(&pool),
+        }
+    }
+
+    fn record_precision(&self, study: &Study, tally: &mut GroupTally) {
+        let m = study.fits.len();
+        if m < 2 {
+            tally.failed_studies += 1;
+        } else {
+            let t = self.t_crit[(m - 1).min(self.t_crit.len() - 1)];
+            for (values, into, truth) in [
+                (
+                    study
+                        .fits
+                        .iter()
+                        .map(|e| e.criterion[0])
+                        .collect::<Moments>(),
+                    &mut tally.criterion,
+                    self.truth.0,
+                ),
+                (
+                    study.fits.iter().map(|e| e.d_prime[0]).collect::<Moments>(),
+                    &mut tally.d_prime,
+                    self.truth.1,
+                ),
+            ] {
+                let se = values.mc_se(false);
+                into.push(values.mean(), se, t * se, truth);
+            }
+        }
+        let pooled = study.pooled.as_ref().and_then(|p| {
+            Some((
+                p.contrast(&[(criterion_index(0), 1.0)])?,
+                p.contrast(&[(d_prime_index(0), 1.0)])?,
+            ))
+        });
+        match pooled {
+            Some(((c, sc), (d, sd))) => {
+                let z = self.z_crit;
+                tally.pooled_criterion.push(c, sc, z * sc, self.truth.0);
+                tally.pooled_d_prime.push(d, sd, z * sd, self.truth.1);
+            }
+            None => tally.pooled_failed += 1,
+        }
+    }
+}
+
+impl<P: AnimalPath> Kernel for GroupKernel<P> {
+    type Tally = GroupTally;
+
+    fn tally(&self) -> GroupTally {
+        GroupTally {
+            tests: vec![TestTally::default(); self.tests.len()],
+            ..GroupTally::default()
+        }
+    }
+
+    fn replicate(&self, rng: &mut ReplicateRng, tally: &mut GroupTally) {
+        let main = self.study(rng, self.animals, 0.0);
+        tally.studies += 1;
+        tally.animals += u64::from(self.animals);
+        tally.animals_dropped += main.dropped;
+        self.record_precision(&main, tally);
+        for (test, into) in self.tests.iter().zip(tally.tests.iter_mut()) {
+            if test.two_populations() {
+                continue;
+            }
+            // Against the hypothesis's null (power), then against the truth (false positives).
+            let [at_null, at_truth] = [test.null, test.truth].map(|value| {
+                let two = if main.fits.len() >= 2 {
+                    test.two_stage(&main.fits, value, self.alpha)
+                } else {
+                    None
+                };
+                let pooled = main
+                    .pooled
+                    .as_ref()
+                    .and_then(|p| test.pooled(p, value, self.alpha));
+                (two, pooled)
+            });
+            into.record([at_null.0, at_truth.0], [at_null.1, at_truth.1]);
+        }
+        // A group difference is its own study: half the animals from each population.
+        for (test, into) in self.tests.iter().zip(tally.tests.iter_mut()) {
+            let super::hypotheses::Contrast::GroupDifference { shift, .. } = test.contrast else {
+                continue;
+            };
+            let n1 = self.animals / 2;
+            let first = self.study(rng, n1, 0.0);
+            let second = self.study(rng, self.animals - n1, shift);
+            tally.animals += u64::from(self.animals);
+            tally.animals_dropped += first.dropped + second.dropped;
+            let [at_null, at_truth] = [test.null, test.truth].map(|value| {
+                let two = test.two_stage_groups(&first.fits, &second.fits, value, self.alpha);
+                let pooled = match (&first.pooled, &second.pooled) {
+                    (Some(a), Some(b)) => test.pooled_groups(a, b, value, self.alpha),
+                    _ => None,
+                };
+                (two, pooled)
+            });
+            into.record([at_null.0, at_truth.0], [at_null.1, at_truth.1]);
+        }
+    }
+
+    fn merge(&self, into: &mut GroupTally, o: GroupTally) {
+        into.studies += o.studies;
+        into.failed_studies += o.failed_studies;
+        into.animals += o.animals;
+        into.animals_dropped += o.animals_dropped;
+        for (a, b) in into.tests.iter_mut().zip(&o.tests) {
+            a.merge(b);
+        }
+        into.criterion.merge(&o.criterion);
+        into.d_prime.merge(&o.d_prime);
+        into.pooled_criterion.merge(&o.pooled_criterion);
+        into.pooled_d_prime.merge(&o.pooled_d_prime);
+        into.pooled_failed += o.pooled_failed;
+    }
+}

@@ -1,0 +1,249 @@
+//! Groups of animals: between-animal variation, group-level inference, lapses, and how to
+//! split effort between animals and trials.
+//!
+//! A plan with an `[animals]` table describes a population: every animal's d′ and criterion
+//! depart from the plan's by a bivariate-normal deviation ([`population`]). Each simulated
+//! study draws its animals, simulates and fits each one ([`animal`] and its three paths),
+//! tests the group two-stage (per-animal estimates, then a t test across animals) and, beside
+//! it, pools all counts into one fit whose Wald test ignores the variation ([`hypotheses`]),
+//! and tallies power and precision ([`kernel`], [`summary`]). A grid runs every animal count
+//! × trial count ([`grid`]); with a `[budget]`, the effort split finds the allocations that
+//! meet the targets at least cost and the best power for the budget ([`effort`], narrowed by
+//! the large-sample [`approximation`] in [`effort_search`]).
+//!
+//! One job per file; nothing here prints. The model and rules are documented in
+//! docs/groups.md.
+
+pub mod animal;
+pub mod animal_cells;
+pub mod animal_rating;
+pub mod animal_yesno;
+pub mod approximation;
+pub mod effort;
+pub mod effort_search;
+pub mod grid;
+pub mod hypotheses;
+pub mod kernel;
+pub mod population;
+pub mod summary;
+
+pub use effort::{Allocation, EffortSplit};
+pub use hypotheses::GroupTest;
+pub use population::Population;
+pub use summary::GroupSummary;
+
+use crate::design::goals::Budget;
+use crate::fit::RateCorrection;
+use crate::model::LapseSpec;
+use crate::plan::Plan;
+use grid::{DesignSetup, grid_trials, run_point};
+use serde::Serialize;
+use std::sync::atomic::{AtomicU64, Ordering};
+use thiserror::Error;
+
+/// Why group results could not be computed.
+#[derive(Debug, Clone, PartialEq, Error)]
+pub enum GroupError {
+    #[error("the plan has no [animals] table; group results need one (add [animals] with counts)")]
+    NoAnimals,
+    #[error(
+        "no design can be run within the trial cap of {cap} trials per animal; raise trial_cap or list smaller trial counts"
+    )]
+    NothingUnderCap { cap: u32 },
+    #[error("design \"{design}\": {message}")]
+    Model { design: String, message: String },
+}
+
+/// One grid point: animals × trials per condition.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GridCell {
+    pub animals: u32,
+    /// Trials per condition.
+    pub trials: u32,
+    pub trials_per_animal: u32,
+    /// Cost under the plan's `[budget]`, if any.
+    pub cost: Option<f64>,
+    pub summary: GroupSummary,
+}
+
+/// Everything reported for one design.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct DesignGroups {
+    pub design: String,
+    pub record: String,
+    pub conditions: usize,
+    /// Population means (c, d′) of the first condition.
+    pub truth_criterion: f64,
+    pub truth_d_prime: f64,
+    pub animals: Vec<u32>,
+    /// Trial counts per condition scanned (the design's, capped).
+    pub trials: Vec<u32>,
+    /// Whether the cap cut any of the design's trial counts.
+    pub capped: bool,
+    pub tests: Vec<GroupTest>,
+    pub cells: Vec<GridCell>,
+    pub effort: Option<EffortSplit>,
+    pub notes: Vec<String>,
+}
+
+impl DesignGroups {
+    /// The grid cell at (animals, trials), if scanned.
+    pub fn cell(&self, animals: u32, trials: u32) -> Option<&GridCell> {
+        self.cells
+            .iter()
+            .find(|c| c.animals == animals && c.trials == trials)
+    }
+}
+
+/// The group report of a plan.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GroupReport {
+    pub population: Population,
+    pub lapse: Option<LapseSpec>,
+    pub alpha: f64,
+    pub confidence: f64,
+    pub experiments: u64,
+    pub rate_correction: RateCorrection,
+    /// Most trials one animal receives, in all conditions.
+    pub trial_cap: Option<u32>,
+    pub budget: Option<Budget>,
+    pub designs: Vec<DesignGroups>,
+}
+
+fn setups(plan: &Plan) -> Result<Vec<DesignSetup<'_>>, GroupError> {
+    let animals = plan.animals.as_ref().ok_or(GroupError::NoAnimals)?;
+    let population = Population::from_animals(animals);
+    Ok(plan
+        .designs
+        .iter()
+        .enumerate()
+        .map(|(index, design)| DesignSetup {
+            plan,
+            index,
+            design,
+            tests: hypotheses::group_tests(plan, design).0,
+            population,
+        })
+        .collect())
+}
+
+/// Group studies the whole plan may simulate (grid plus the effort split's upper bound), for
+/// a progress bar; [`run_groups`] reports exactly this many in total.
+pub fn total_group_replicates(plan: &Plan) -> u64 {
+    let (Ok(setups), Some(animals)) = (setups(plan), plan.animals.as_ref()) else {
+        return 0;
+    };
+    setups
+        .iter()
+        .map(|s| {
+            let trials = grid_trials(s.design, animals.trial_cap).len() as u64;
+            if trials == 0 {
+                return 0;
+            }
+            animals.counts.len() as u64 * trials * plan.study.experiments
+                + effort::max_replicates(s)
+        })
+        .sum()
+}
+
+/// Runs the grid of every design and, with a `[budget]`, the effort split; `progress` is told
+/// how many group studies finished.
+pub fn run_groups(plan: &Plan, progress: &(dyn Fn(u64) + Sync)) -> Result<GroupReport, GroupError> {
+    let animals = plan.animals.as_ref().ok_or(GroupError::NoAnimals)?;
+    let total = total_group_replicates(plan);
+    let done = AtomicU64::new(0);
+    let counted = |k: u64| {
+        done.fetch_add(k, Ordering::Relaxed);
+        progress(k);
+    };
+    let mut designs = Vec::new();
+    for setup in setups(plan)? {
+        let design = setup.design;
+        let (_, mut notes) = hypotheses::group_tests(plan, design);
+        let trials = grid_trials(design, animals.trial_cap);
+        if trials.is_empty() {
+            notes.push(format!(
+                "skipped: every trial count is above the cap of {} trials per animal",
+                animals.trial_cap.unwrap_or(0)
+            ));
+        }
+        let mut cells = Vec::new();
+        for &n_animals in &animals.counts {
+            for &n in &trials {
+                let summary = run_point(
+                    &setup,
+                    n_animals,
+                    n,
+                    plan.study.experiments,
+                    plan.study.seed,
+                    &counted,
+                )?;
+                cells.push(GridCell {
+                    animals: n_animals,
+                    trials: n,
+                    trials_per_animal: setup.trials_per_animal(n),
+                    cost: plan
+                        .budget
+                        .map(|b| b.cost(n_animals, setup.trials_per_animal(n))),
+                    summary,
+                });
+            }
+        }
+        let effort = if trials.is_empty() {
+            None
+        } else {
+            let cache = cells
+                .iter()
+                .map(|c| ((c.animals, c.trials), c.summary.clone()))
+                .collect();
+            match effort::effort_split(&setup, &trials, cache, &counted)? {
+                Ok(split) => Some(split),
+                Err(note) => {
+                    if plan.budget.is_some() {
+                        notes.push(note);
+                    }
+                    None
+                }
+            }
+        };
+        let (truth_criterion, truth_d_prime) = setup.truth();
+        designs.push(DesignGroups {
+            design: design.name.clone(),
+            record: design.record_label(),
+            conditions: design.conditions.len(),
+            truth_criterion,
+            truth_d_prime,
+            animals: animals.counts.clone(),
+            capped: design
+                .trials
+                .iter()
+                .any(|t| !trials.contains(t) && trials.last().is_some_and(|l| t > l)),
+            trials,
+            tests: setup.tests.clone(),
+            cells,
+            effort,
+            notes,
+        });
+    }
+    if designs.iter().all(|d| d.cells.is_empty()) {
+        return Err(GroupError::NothingUnderCap {
+            cap: animals.trial_cap.unwrap_or(0),
+        });
+    }
+    // Finish the bar: the effort split may need fewer studies than its upper bound.
+    let left = total.saturating_sub(done.load(Ordering::Relaxed));
+    if left > 0 {
+        progress(left);
+    }
+    Ok(GroupReport {
+        population: Population::from_animals(animals),
+        lapse: plan.observer.lapse,
+        alpha: plan.study.alpha,
+        confidence: plan.study.confidence,
+        experiments: plan.study.experiments,
+        rate_correction: plan.study.rate_correction,
+        trial_cap: animals.trial_cap,
+        budget: plan.budget,
+        designs,
+    })
+}

@@ -1,0 +1,169 @@
+//! From a grid cell's tally to the numbers a report shows, each with its Monte Carlo
+//! uncertainty: means carry their MC standard error, proportions a Wilson 95% interval
+//! (Wilson 1927).
+//!
+//! Power is rejections over all simulated studies: a study whose test had no answer (too few
+//! usable animals) counts as not rejecting, so failures never flatter the power; their share
+//! is reported beside it.
+
+use super::hypotheses::GroupTest;
+use super::kernel::{GroupTally, PrecisionTally, TestTally};
+use crate::design::goals::TestKind;
+use crate::engine::summary::MC_LEVEL;
+use crate::engine::{Figure, Share};
+use crate::infer::{Sided, wilson_interval};
+use serde::Serialize;
+
+/// How well a group study estimates a population mean.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GroupPrecision {
+    /// The population mean.
+    pub truth: f64,
+    /// Mean of the estimates over simulated studies.
+    pub mean: Figure,
+    /// SD of the estimates over simulated studies (the true SE of one study's estimate).
+    pub sd: Figure,
+    /// Mean of the SE one study would report.
+    pub mean_se: Figure,
+    /// Share of studies whose interval held the population mean.
+    pub coverage: Share,
+    /// Mean half-width of that interval.
+    pub half_width: Figure,
+}
+
+/// Power of one hypothesis, two-stage and pooled.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct TestSummary {
+    pub name: String,
+    pub kind: TestKind,
+    pub sided: Sided,
+    /// True contrast minus its null value; 0 means the rejection rates are type-I errors.
+    pub effect: f64,
+    pub target: Option<f64>,
+    pub two_stage: Share,
+    pub pooled: Share,
+    pub two_stage_failed: Share,
+    pub pooled_failed: Share,
+    /// Rejections of the contrast's true value (false positives), two-stage and pooled.
+    pub two_stage_false: Share,
+    pub pooled_false: Share,
+}
+
+impl TestSummary {
+    /// Whether the population sits on the null, so rejections are false positives.
+    pub fn null_is_true(&self) -> bool {
+        self.effect.abs() < 1e-12
+    }
+}
+
+/// Everything reported for one design × animals × trials.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GroupSummary {
+    pub studies: u64,
+    pub tests: Vec<TestSummary>,
+    /// Two-stage: the mean of the animals' ĉ (first condition), SE s/√m, t interval.
+    pub criterion: GroupPrecision,
+    pub d_prime: GroupPrecision,
+    /// Pooled fit: ĉ and d̂′ with Wald SEs and intervals.
+    pub pooled_criterion: GroupPrecision,
+    pub pooled_d_prime: GroupPrecision,
+    /// Share of animal fits left out under the degenerate-animal rule.
+    pub animals_dropped: Share,
+    /// Share of studies with fewer than 2 usable animals.
+    pub failed_studies: Share,
+    /// Share of studies whose pooled fit failed.
+    pub pooled_failed: Share,
+}
+
+/// A Monte Carlo proportion x/n with its Wilson 95% interval.
+pub fn share(x: u64, n: u64) -> Share {
+    match wilson_interval(x, n, MC_LEVEL) {
+        Ok(i) => Share {
+            value: x as f64 / n as f64,
+            low: i.lower,
+            high: i.upper,
+        },
+        Err(_) => Share {
+            value: f64::NAN,
+            low: f64::NAN,
+            high: f64::NAN,
+        },
+    }
+}
+
+fn precision(t: &PrecisionTally, truth: f64) -> GroupPrecision {
+    let n = t.estimate.count() as f64;
+    let sd = t.estimate.variance(false).sqrt();
+    GroupPrecision {
+        truth,
+        mean: Figure {
+            value: t.estimate.mean(),
+            mc_se: t.estimate.mc_se(false),
+        },
+        // Normal-theory MC error of an SD: SD/√(2(n − 1)).
+        sd: Figure {
+            value: sd,
+            mc_se: sd / (2.0 * (n - 1.0)).sqrt(),
+        },
+        mean_se: Figure {
+            value: t.se.mean(),
+            mc_se: t.se.mc_se(false),
+        },
+        coverage: share(t.covered, t.estimate.count()),
+        half_width: Figure {
+            value: t.half_width.mean(),
+            mc_se: t.half_width.mc_se(false),
+        },
+    }
+}
+
+fn test_summary(test: &GroupTest, t: &TestTally, studies: u64) -> TestSummary {
+    TestSummary {
+        name: test.name.clone(),
+        kind: test.kind,
+        sided: test.sided,
+        effect: test.effect,
+        target: test.target,
+        two_stage: share(t.two_stage_reject, studies),
+        pooled: share(t.pooled_reject, studies),
+        two_stage_failed: share(t.two_stage_failed, studies),
+        pooled_failed: share(t.pooled_failed, studies),
+        two_stage_false: share(t.two_stage_false, studies),
+        pooled_false: share(t.pooled_false, studies),
+    }
+}
+
+/// Summarises a tally; `truth` = population means (c, d′) of the first condition.
+pub fn summarise(tests: &[GroupTest], tally: &GroupTally, truth: (f64, f64)) -> GroupSummary {
+    let n = tally.studies;
+    GroupSummary {
+        studies: n,
+        tests: tests
+            .iter()
+            .zip(&tally.tests)
+            .map(|(test, t)| test_summary(test, t, n))
+            .collect(),
+        criterion: precision(&tally.criterion, truth.0),
+        d_prime: precision(&tally.d_prime, truth.1),
+        pooled_criterion: precision(&tally.pooled_criterion, truth.0),
+        pooled_d_prime: precision(&tally.pooled_d_prime, truth.1),
+        animals_dropped: share(tally.animals_dropped, tally.animals),
+        failed_studies: share(tally.failed_studies, n),
+        pooled_failed: share(tally.pooled_failed, n),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // references.md, Wilson 95% intervals [library: statsmodels proportion_confint]:
+    // 80/100 → [0.711171, 0.866633].
+    #[test]
+    fn shares_carry_wilson_intervals() {
+        let s = share(80, 100);
+        assert!((s.low - 0.711171).abs() < 1e-6);
+        assert!((s.high - 0.866633).abs() < 1e-6);
+        assert!(share(0, 0).value.is_nan());
+    }
+}

@@ -1,0 +1,417 @@
+//! The group report as text: per design, compact animals × trials tables of two-stage power,
+//! pooled rejection rate and the precision of the group mean criterion; the effort-split
+//! frontier; plain reading lines; and the animal-welfare caution.
+
+use super::CAUTION;
+use super::style::{new_table, right_align};
+use crate::design::goals::TestKind;
+use crate::engine::Share;
+use crate::groups::effort::Allocation;
+use crate::groups::summary::TestSummary;
+use crate::groups::{DesignGroups, EffortSplit, GridCell, GroupReport, GroupTest};
+use crate::infer::Sided;
+use crate::plan::Plan;
+use std::fmt::Write;
+
+/// The caution specific to groups, repeated under every group report.
+pub const GROUP_CAUTION: &str = "How many animals to use is settled with your local animal-welfare body \
+(ethics committee, IACUC or equivalent) under the Reduction principle: the fewest animals that answer the \
+question. A cheaper allocation with more animals is not automatically the better one.";
+
+/// The whole group report: a title, [`render_section`], and the general caution.
+pub fn render(plan: &Plan, report: &GroupReport) -> String {
+    let mut out = format!("vigil groups — {}\n", plan.study.title);
+    out.push_str(&render_section(plan, report));
+    let _ = writeln!(out, "Caution: {CAUTION}");
+    out
+}
+
+/// The group results without title or general caution, for a report that has both already
+/// (e.g. inserted before the "Caution:" line of `vigil run`); ends with the animals caution.
+pub fn render_section(plan: &Plan, report: &GroupReport) -> String {
+    let mut out = String::new();
+    header(&mut out, plan, report);
+    for d in &report.designs {
+        design_block(&mut out, report, d);
+    }
+    let _ = writeln!(out, "Animals: {GROUP_CAUTION}");
+    let _ = writeln!(out);
+    out
+}
+
+fn header(out: &mut String, plan: &Plan, r: &GroupReport) {
+    let o = &plan.observer;
+    let p = &r.population;
+    let mut line = format!(
+        "Population: d′ = {:.2} (between-animal SD {:.2}), c = {:+.2} (SD {:.2}), correlation of an animal's d′ and c {:+.2}",
+        o.d_prime, p.sd_d_prime, o.criterion, p.sd_criterion, p.correlation
+    );
+    if let Some(l) = r.lapse {
+        let _ = write!(
+            line,
+            "; lapses on {:.1}% of trials (answered \"present\" {:.0}% of the time)",
+            100.0 * l.rate,
+            100.0 * l.guess_yes
+        );
+    }
+    if let Some(cap) = r.trial_cap {
+        let _ = write!(line, "; at most {cap} trials per animal");
+    }
+    let _ = writeln!(out, "{line}.");
+    let _ = writeln!(
+        out,
+        "Two-stage: every animal fitted on its own ({} correction; an animal whose fit still fails is left out and counted), \
+         then a t test across animals at α = {}. Pooled: all animals' counts summed into one fit and a Wald test, which \
+         ignores how animals differ. {} simulated studies per cell; power with its 95% Wilson interval, means ± Monte Carlo SE.",
+        r.rate_correction.name(),
+        r.alpha,
+        r.experiments
+    );
+    let _ = writeln!(out);
+}
+
+/// "0.83 (0.81–0.85)"; a dash when undefined.
+fn power(s: &Share) -> String {
+    if s.value.is_finite() {
+        format!("{:.2} ({:.2}–{:.2})", s.value, s.low, s.high)
+    } else {
+        "–".into()
+    }
+}
+
+fn sign(sided: Sided) -> &'static str {
+    match sided {
+        Sided::TwoSided => "≠",
+        Sided::Greater => ">",
+        Sided::Less => "<",
+    }
+}
+
+/// What a test asks, in words.
+pub fn describe(test: &GroupTest) -> String {
+    use crate::groups::hypotheses::Contrast;
+    let s = sign(test.sided);
+    match test.contrast {
+        Contrast::Criterion { .. } if test.kind == TestKind::IdealCriterion => {
+            format!(
+                "mean criterion {s} the ideal observer's ({:+.2})",
+                test.null
+            )
+        }
+        Contrast::Criterion { .. } => format!("mean criterion {s} {}", test.null),
+        Contrast::CriterionShift { .. } => format!("mean criterion shift between conditions {s} 0"),
+        Contrast::SensitivityDifference { .. } => {
+            format!("mean d′ difference between conditions {s} 0")
+        }
+        Contrast::LnSigma => format!("mean ln σ {s} 0 (σ {s} 1)"),
+        Contrast::GroupDifference { shift, .. } => format!(
+            "second population's mean criterion − the first's {s} 0 (half the animals from each; true shift {shift:+.2})"
+        ),
+    }
+}
+
+fn grid_table(d: &DesignGroups, cell: impl Fn(&GridCell) -> String) -> String {
+    let mut header = vec!["animals".to_string()];
+    header.extend(d.trials.iter().map(|&n| {
+        if d.conditions > 1 {
+            format!("{n} trials/cond.")
+        } else {
+            format!("{n} trials")
+        }
+    }));
+    let mut t = new_table(header.iter().map(String::as_str).collect());
+    for &a in &d.animals {
+        let mut row = vec![a.to_string()];
+        row.extend(
+            d.trials
+                .iter()
+                .map(|&n| d.cell(a, n).map_or("–".into(), &cell)),
+        );
+        t.add_row(row);
+    }
+    right_align(&mut t, 0..d.trials.len() + 1);
+    t.to_string()
+}
+
+fn design_block(out: &mut String, r: &GroupReport, d: &DesignGroups) {
+    let mut title = format!("■ {}  ({}", d.design, d.record);
+    if d.capped {
+        let _ = write!(
+            title,
+            "; trial counts above the cap of {} per animal capped",
+            r.trial_cap.unwrap_or(0)
+        );
+    }
+    let _ = writeln!(out, "{title})");
+    for note in &d.notes {
+        let _ = writeln!(out, "Note: {note}");
+    }
+    if d.cells.is_empty() {
+        let _ = writeln!(out);
+        return;
+    }
+    for (i, test) in d.tests.iter().enumerate() {
+        let _ = writeln!(
+            out,
+            "\"{}\": {} — two-stage power [95%]",
+            test.name,
+            describe(test)
+        );
+        let _ = writeln!(
+            out,
+            "{}",
+            grid_table(d, |c| power(&c.summary.tests[i].two_stage))
+        );
+        let _ = writeln!(
+            out,
+            "\"{}\": pooled test's rejection rate · its rejection rate of the true value",
+            test.name
+        );
+        let _ = writeln!(
+            out,
+            "{}",
+            grid_table(d, |c| {
+                let t = &c.summary.tests[i];
+                format!("{:.2} · {:.2}", t.pooled.value, t.pooled_false.value)
+            })
+        );
+        let worst = |f: fn(&TestSummary) -> f64| {
+            d.cells
+                .iter()
+                .map(|c| f(&c.summary.tests[i]))
+                .fold(f64::NAN, f64::max)
+        };
+        let best = |f: fn(&TestSummary) -> f64| {
+            d.cells
+                .iter()
+                .map(|c| f(&c.summary.tests[i]))
+                .fold(f64::NAN, f64::min)
+        };
+        let _ = writeln!(
+            out,
+            "False positives (each test of the population's true value{}): two-stage {:.2}–{:.2}, pooled {:.2}–{:.2}, against α = {}. \
+             The pooled test treats differences between animals as sampling noise, so its higher rates are not extra power.",
+            if r.lapse.is_some() {
+                "; lapses move every estimate towards c = 0, which moves these rates too"
+            } else {
+                ""
+            },
+            best(|t| t.two_stage_false.value),
+            worst(|t| t.two_stage_false.value),
+            best(|t| t.pooled_false.value),
+            worst(|t| t.pooled_false.value),
+            r.alpha,
+        );
+    }
+    let _ = writeln!(
+        out,
+        "Group mean of c (population {:+.2}): SE of the mean (average over studies) · 95% coverage",
+        d.truth_criterion
+    );
+    let _ = writeln!(
+        out,
+        "{}",
+        grid_table(d, |c| {
+            let s = &c.summary.criterion;
+            format!("{:.3} · {:.1}%", s.mean_se.value, 100.0 * s.coverage.value)
+        })
+    );
+    let dropped = d
+        .cells
+        .iter()
+        .map(|c| c.summary.animals_dropped.value)
+        .fold(0.0, f64::max);
+    let failed = d
+        .cells
+        .iter()
+        .map(|c| c.summary.failed_studies.value)
+        .fold(0.0, f64::max);
+    let _ = writeln!(
+        out,
+        "Left out: at most {:.1}% of animal fits in any cell (no fit after the {} correction); at most {:.1}% of studies had fewer than 2 usable animals.",
+        100.0 * dropped,
+        r.rate_correction.name(),
+        100.0 * failed
+    );
+    precision_reading(out, r, d);
+    if let Some(e) = &d.effort {
+        effort_block(out, d, e);
+    }
+    let _ = writeln!(out);
+}
+
+fn precision_reading(out: &mut String, r: &GroupReport, d: &DesignGroups) {
+    let (Some(small), Some(large)) = (d.cells.first(), d.cells.last()) else {
+        return;
+    };
+    let level = 100.0 * r.confidence;
+    let _ = writeln!(
+        out,
+        "Reading: {}: the group mean criterion is pinned to ±{:.2} with {} animals × {} trials each and ±{:.2} with {} × {} ({level:.0}% half-widths); \
+         the pooled fit claims ±{:.2} and ±{:.2}, but its intervals hold the population mean in only {:.0}% and {:.0}% of studies.",
+        d.design,
+        small.summary.criterion.half_width.value,
+        small.animals,
+        small.trials_per_animal,
+        large.summary.criterion.half_width.value,
+        large.animals,
+        large.trials_per_animal,
+        small.summary.pooled_criterion.half_width.value,
+        large.summary.pooled_criterion.half_width.value,
+        100.0 * small.summary.pooled_criterion.coverage.value,
+        100.0 * large.summary.pooled_criterion.coverage.value,
+    );
+}
+
+/// What the simulation gives an answer: the weakest power, or the half-width of the mean c
+/// when no hypothesis drives the split.
+fn outcome(a: &Allocation) -> String {
+    match a.weakest() {
+        Some(s) => format!("power {}", power(&s)),
+        None => format!(
+            "half-width ±{:.3} on the mean criterion",
+            a.criterion_half_width.value
+        ),
+    }
+}
+
+fn goal_names(e: &EffortSplit) -> String {
+    let names: Vec<String> = e.goals.iter().map(|g| format!("\"{}\"", g.name)).collect();
+    names.join(" and ")
+}
+
+fn frontier_table(
+    d: &DesignGroups,
+    e: &EffortSplit,
+    rows: &[Allocation],
+    mark: Option<usize>,
+    label: &str,
+) -> String {
+    let mut header = vec!["trials/animal".to_string(), "animals".into(), "cost".into()];
+    for g in &e.goals {
+        header.push(format!("≈ power \"{}\"", g.name));
+        header.push(format!("power \"{}\" [95%]", g.name));
+    }
+    header.push("±c (mean)".into());
+    header.push(String::new());
+    let mut t = new_table(header.iter().map(String::as_str).collect());
+    for (i, a) in rows.iter().enumerate() {
+        let mut row = vec![
+            if d.conditions > 1 {
+                format!("{} ({}/cond.)", a.trials_per_animal, a.trials)
+            } else {
+                a.trials_per_animal.to_string()
+            },
+            a.animals.to_string(),
+            format!("{:.0}", a.cost),
+        ];
+        for (p, s) in a.approx_power.iter().zip(&a.power) {
+            row.push(format!("{p:.2}"));
+            row.push(power(s));
+        }
+        row.push(format!("{:.3}", a.criterion_half_width.value));
+        row.push(if Some(i) == mark {
+            label.to_string()
+        } else {
+            String::new()
+        });
+        t.add_row(row);
+    }
+    right_align(&mut t, 0..3 + 2 * e.goals.len() + 1);
+    t.to_string()
+}
+
+fn effort_block(out: &mut String, d: &DesignGroups, e: &EffortSplit) {
+    let b = &e.budget;
+    let per_cond = if d.conditions > 1 {
+        " per condition"
+    } else {
+        ""
+    };
+    let _ = writeln!(
+        out,
+        "Effort split: {} per animal + {} per trial{}; trials{per_cond} searched from {} to {} (≈ = large-sample approximation, then simulated).",
+        b.cost_per_animal,
+        b.cost_per_trial,
+        b.total.map_or(String::new(), |t| format!(", budget {t}")),
+        e.trials_range[0],
+        e.trials_range[1],
+    );
+    for note in &e.notes {
+        let _ = writeln!(out, "Note: {note}");
+    }
+    if !e.budget_frontier.is_empty() {
+        let _ = writeln!(out, "Most animals the budget buys at each trial count:");
+        let _ = writeln!(
+            out,
+            "{}",
+            frontier_table(d, e, &e.budget_frontier, e.best_for_budget, "← best")
+        );
+    }
+    if !e.target_frontier.is_empty() {
+        let _ = writeln!(
+            out,
+            "Fewest animals meeting the targets at each trial count (after simulation):"
+        );
+        let _ = writeln!(
+            out,
+            "{}",
+            frontier_table(d, e, &e.target_frontier, e.least_cost, "← least cost")
+        );
+    }
+    let goals = goal_names(e);
+    if let (Some(i), Some(total)) = (e.best_for_budget, b.total) {
+        let a = &e.budget_frontier[i];
+        let _ = writeln!(
+            out,
+            "Reading: with the budget of {total}: {} animals × {} trials each (cost {:.0}) gives power {} for {goals}.",
+            a.animals,
+            a.trials_per_animal,
+            a.cost,
+            a.weakest().map_or("–".into(), |s| power(&s)),
+        );
+    }
+    if let Some(i) = e.least_cost {
+        let a = &e.target_frontier[i];
+        let targets: Vec<String> = e
+            .goals
+            .iter()
+            .filter_map(|g| g.target.map(|t| format!("power {t} for \"{}\"", g.name)))
+            .chain(
+                e.criterion_half_width
+                    .map(|w| format!("±{w} on the mean criterion")),
+            )
+            .chain(e.d_prime_half_width.map(|w| format!("±{w} on the mean d′")))
+            .collect();
+        let within = match b.total {
+            Some(t) if a.cost <= t => format!(", within the budget of {t}"),
+            Some(t) => format!(", over the budget of {t}"),
+            None => String::new(),
+        };
+        let _ = writeln!(
+            out,
+            "Reading: the least cost meeting {}: {} animals × {} trials each (cost {:.0}{within}), simulated {}.",
+            targets.join(" and "),
+            a.animals,
+            a.trials_per_animal,
+            a.cost,
+            outcome(a),
+        );
+        // Reduction: the fewest animals that meet the targets, whatever they cost.
+        let fewest = e
+            .target_frontier
+            .iter()
+            .filter(|r| r.meets_targets == Some(true))
+            .min_by(|x, y| x.animals.cmp(&y.animals).then(x.cost.total_cmp(&y.cost)));
+        if let Some(f) = fewest.filter(|f| f.animals < a.animals) {
+            let _ = writeln!(
+                out,
+                "Reading: the fewest animals among these rows that meet the same targets: {} animals × {} trials each (cost {:.0}), simulated {}.",
+                f.animals,
+                f.trials_per_animal,
+                f.cost,
+                outcome(f),
+            );
+        }
+    }
+}
