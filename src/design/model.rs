@@ -115,23 +115,12 @@ pub fn condition_specs(design: &Design, observer: &Observer, trials: u32) -> Vec
         .collect()
 }
 
-/// On a lapse trial the animal ignores the evidence and responds "present" with
-/// probability g: spread evenly over the categories at or above the boundary, and 1 − g
-/// evenly over those below it. With K = 2 this is the usual guessing model.
+/// The lapse process of the model: see [`LapseSpec::guess`].
 fn lapse(l: LapseSpec, categories: usize, boundary: usize) -> Lapse {
-    let above = (categories - boundary) as f64;
-    let below = boundary as f64;
-    let guess = (0..categories)
-        .map(|m| {
-            if m >= boundary {
-                l.guess_yes / above
-            } else {
-                (1.0 - l.guess_yes) / below
-            }
-        })
-        .collect();
     Lapse {
         rate: l.rate,
-        guess,
+        guess: (0..categories)
+            .map(|m| l.guess(m, categories, boundary))
+            .collect(),
     }
 }

@@ -177,6 +177,13 @@ fn simulate_scenario(
     let design = &plan.designs[scenario.design];
     let z_crit = z_critical(plan.study.confidence);
     let study = &plan.study;
+    let model_error = |e: &dyn std::fmt::Display| RunError::Model {
+        design: design.name.clone(),
+        message: e.to_string(),
+    };
+    let simulate = |tally: tally::EstimateTally| {
+        summary::summarise(*scenario, &design.name, &tally, Method::MonteCarlo)
+    };
     if !design.is_single_table() || tests_apply(plan, design) {
         let kernel = CellsKernel::with_tests(
             design,
@@ -187,23 +194,14 @@ fn simulate_scenario(
             &|model| crate::power::contrasts_for(plan, design, model),
             study.alpha,
         )
-        .map_err(|e| RunError::Model {
-            design: design.name.clone(),
-            message: e.to_string(),
-        })?;
-        let tally = run_replicates(
+        .map_err(|e| model_error(&e))?;
+        return Ok(simulate(run_replicates(
             &kernel,
             study.seed,
             scenario.id,
             study.experiments,
             progress,
-        );
-        return Ok(summary::summarise(
-            *scenario,
-            &design.name,
-            &tally,
-            Method::MonteCarlo,
-        ));
+        )));
     }
     Ok(match &design.response {
         Response::YesNo => {
@@ -211,21 +209,24 @@ fn simulate_scenario(
                 &design.conditions[0].observer(&plan.observer),
                 scenario.split.present,
                 scenario.split.absent,
-                plan.study.rate_correction,
+                study.rate_correction,
                 z_crit,
             );
             if options.exact {
-                let tally = exact::enumerate(&kernel);
-                summary::summarise(*scenario, &design.name, &tally, Method::Exact)
+                summary::summarise(
+                    *scenario,
+                    &design.name,
+                    &exact::enumerate(&kernel),
+                    Method::Exact,
+                )
             } else {
-                let tally = run_replicates(
+                simulate(run_replicates(
                     &kernel,
-                    plan.study.seed,
+                    study.seed,
                     scenario.id,
-                    plan.study.experiments,
+                    study.experiments,
                     progress,
-                );
-                summary::summarise(*scenario, &design.name, &tally, Method::MonteCarlo)
+                ))
             }
         }
         Response::Rating(scale) => {
@@ -237,18 +238,14 @@ fn simulate_scenario(
                 study.rate_correction,
                 z_crit,
             )
-            .map_err(|e| RunError::Model {
-                design: design.name.clone(),
-                message: e.to_string(),
-            })?;
-            let tally = run_replicates(
+            .map_err(|e| model_error(&e))?;
+            simulate(run_replicates(
                 &kernel,
                 study.seed,
                 scenario.id,
                 study.experiments,
                 progress,
-            );
-            summary::summarise(*scenario, &design.name, &tally, Method::MonteCarlo)
+            ))
         }
     })
 }

@@ -70,17 +70,8 @@ impl RatingKernel {
         let params = RatingParams::new(condition.d_prime, sigma, &absolute)?;
         let (mut absent_p, mut present_p) = params.cell_probabilities();
         if let Some(l) = observer.lapse {
-            // Lapse trials answer "present" with probability g, spread evenly over the
-            // categories at or above the boundary (as in design::model).
-            for m in 0..k {
-                let guess = if m >= scale.boundary {
-                    l.guess_yes / (k - scale.boundary) as f64
-                } else {
-                    (1.0 - l.guess_yes) / scale.boundary as f64
-                };
-                absent_p[m] = (1.0 - l.rate) * absent_p[m] + l.rate * guess;
-                present_p[m] = (1.0 - l.rate) * present_p[m] + l.rate * guess;
-            }
+            l.mix(&mut absent_p[..k], scale.boundary);
+            l.mix(&mut present_p[..k], scale.boundary);
         }
         let template = rating_truths(
             condition.d_prime,

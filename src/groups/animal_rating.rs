@@ -47,7 +47,8 @@ impl RatingAnimals {
             scale: scale.clone(),
             d_prime: condition.d_prime,
             criterion: condition.criterion,
-            sigma: if scale.fix_sigma { 1.0 } else { observer.sigma },
+            // The animal's σ generates the data even when the analysis holds σ at 1.
+            sigma: observer.sigma,
             lapse: observer.lapse,
             split,
             correction,
@@ -77,15 +78,8 @@ impl RatingAnimals {
         let params = RatingParams::new(d, self.sigma, &absolute[..k - 1]).ok()?;
         let (mut absent, mut present) = params.cell_probabilities();
         if let Some(l) = self.lapse {
-            for m in 0..k {
-                let guess = if m >= b {
-                    l.guess_yes / (k - b) as f64
-                } else {
-                    (1.0 - l.guess_yes) / b as f64
-                };
-                absent[m] = (1.0 - l.rate) * absent[m] + l.rate * guess;
-                present[m] = (1.0 - l.rate) * present[m] + l.rate * guess;
-            }
+            l.mix(&mut absent[..k], b);
+            l.mix(&mut present[..k], b);
         }
         Some((absent, present))
     }

@@ -18,8 +18,7 @@ use super::animal::{AnimalEstimate, PooledEstimate, criterion_index, d_prime_ind
 use crate::design::Design;
 use crate::design::goals::{Hypothesis, TestKind};
 use crate::infer::{Sided, one_sample_t, paired_t, wald_test, welch_t};
-use crate::model::ideal::IdealObserver;
-use crate::plan::{CriterionRule, Plan};
+use crate::plan::Plan;
 use serde::Serialize;
 
 /// What a hypothesis compares, in a design's condition indices.
@@ -159,16 +158,7 @@ fn pairs(
     animals.iter().map(|e| (get(e)[a], get(e)[b])).unzip()
 }
 
-/// The ideal observer's criterion for a condition, when the plan states payoffs through
-/// `criterion = "optimal"` (Green & Swets 1966: c_opt = ln β_opt / d′).
-pub fn ideal_criterion(plan: &Plan, presence: f64, d_prime: f64) -> Option<f64> {
-    match plan.criterion_rule {
-        CriterionRule::Optimal { payoffs, .. } => IdealObserver::new(d_prime, presence, payoffs)
-            .ok()
-            .map(|i| i.optimal_criterion()),
-        CriterionRule::Fixed { .. } => None,
-    }
-}
+pub use crate::power::ideal_criterion;
 
 /// The plan's hypotheses as `design` tests them, and a note for each it cannot test.
 pub fn group_tests(plan: &Plan, design: &Design) -> (Vec<GroupTest>, Vec<String>) {

@@ -37,6 +37,27 @@ pub struct Rates {
     pub false_alarm: f64,
 }
 
+impl LapseSpec {
+    /// P(category m) on a lapse trial of a K-category scale with boundary b: "present"
+    /// responses (probability g) spread evenly over the categories at or above b, the rest
+    /// evenly below it. With K = 2 this is the usual guessing model.
+    pub fn guess(&self, m: usize, categories: usize, boundary: usize) -> f64 {
+        if m >= boundary {
+            self.guess_yes / (categories - boundary) as f64
+        } else {
+            (1.0 - self.guess_yes) / boundary as f64
+        }
+    }
+
+    /// Mixes lapses into category probabilities in place: p = (1 − λ)·p + λ·guess.
+    pub fn mix(&self, probabilities: &mut [f64], boundary: usize) {
+        let k = probabilities.len();
+        for (m, p) in probabilities.iter_mut().enumerate() {
+            *p = (1.0 - self.rate) * *p + self.rate * self.guess(m, k, boundary);
+        }
+    }
+}
+
 impl Observer {
     /// Expected yes/no rates with the boundary at k = c + d′/2:
     /// H = Φ((d′ − k)/σ), F = Φ(−k); with σ = 1, H = Φ(d′/2 − c), F = Φ(−d′/2 − c).
