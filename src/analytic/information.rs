@@ -19,7 +19,6 @@ use thiserror::Error;
 
 use super::verdict::{ParameterNames, ProfileRange, Verdict, from_assessment};
 use crate::cells::cell_probabilities::{Order, cell_probabilities};
-use crate::cells::coarsening::BlockKind;
 use crate::cells::error::{InputError, SpecError};
 use crate::cells::identifiability::assess;
 use crate::cells::information::{ConditionPrecision, UnitInformation, precision};
@@ -27,9 +26,9 @@ use crate::cells::likelihood::Counts;
 use crate::cells::newton::{FitOptions, Start, fit};
 use crate::cells::observation_model::ObservationModel;
 use crate::cells::profile::{ProfileOptions, ProfileTarget, profile_interval};
+use crate::design::Design;
 use crate::design::model::condition_specs;
 use crate::design::quantities::{ReportedQuantity, reported_quantities};
-use crate::design::{Design, split_trials};
 use crate::engine::Quantity;
 use crate::plan::Plan;
 
@@ -174,21 +173,11 @@ impl DesignInformation {
                 trials,
             });
         }
-        let conditions = &self.design.conditions;
-        Ok(self
-            .model
-            .blocks()
-            .iter()
-            .map(|b| {
-                let split = || split_trials(trials, conditions[b.condition].presence);
-                match b.kind {
-                    BlockKind::PresentTrials => f64::from(split().present),
-                    BlockKind::AbsentTrials => f64::from(split().absent),
-                    BlockKind::Encounters => f64::from(trials),
-                    BlockKind::Census => b.n,
-                }
-            })
-            .collect())
+        Ok(crate::design::model::block_sizes(
+            &self.design,
+            &self.model,
+            trials,
+        ))
     }
 
     /// The expected information matrix I(θ_true) at `trials` per condition.

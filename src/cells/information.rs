@@ -99,25 +99,7 @@ impl UnitInformation {
 
     /// Σ_b n_b·I_b for block sizes `sizes`.
     pub fn total(&self, sizes: &[f64]) -> Result<DMatrix<f64>, InputError> {
-        if sizes.len() != self.blocks.len() {
-            return Err(InputError::BlockCount {
-                what: "block sizes",
-                expected: self.blocks.len(),
-                found: sizes.len(),
-            });
-        }
-        if let Some((block, &value)) = sizes
-            .iter()
-            .enumerate()
-            .find(|(_, n)| !(n.is_finite() && **n >= 0.0))
-        {
-            return Err(InputError::InvalidCount {
-                what: "block size",
-                block,
-                cell: 0,
-                value,
-            });
-        }
+        crate::cells::observation_model::check_block_sizes(sizes, self.blocks.len())?;
         let dim = self.blocks.first().map_or(0, |b| b.nrows());
         let mut info = DMatrix::zeros(dim, dim);
         for (b, &n) in self.blocks.iter().zip(sizes) {

@@ -112,27 +112,32 @@ impl ObservationModel {
 
     /// Block sizes must match the blocks and be finite and ≥ 0.
     pub fn check_sizes(&self, sizes: &[f64]) -> Result<(), InputError> {
-        if sizes.len() != self.blocks.len() {
-            return Err(InputError::BlockCount {
-                what: "block sizes",
-                expected: self.blocks.len(),
-                found: sizes.len(),
-            });
-        }
-        if let Some((block, &value)) = sizes
-            .iter()
-            .enumerate()
-            .find(|(_, n)| !(n.is_finite() && **n >= 0.0))
-        {
-            return Err(InputError::InvalidCount {
-                what: "block size",
-                block,
-                cell: 0,
-                value,
-            });
-        }
-        Ok(())
+        check_block_sizes(sizes, self.blocks.len())
     }
+}
+
+/// `sizes` must hold `blocks` finite values ≥ 0.
+pub fn check_block_sizes(sizes: &[f64], blocks: usize) -> Result<(), InputError> {
+    if sizes.len() != blocks {
+        return Err(InputError::BlockCount {
+            what: "block sizes",
+            expected: blocks,
+            found: sizes.len(),
+        });
+    }
+    if let Some((block, &value)) = sizes
+        .iter()
+        .enumerate()
+        .find(|(_, n)| !(n.is_finite() && **n >= 0.0))
+    {
+        return Err(InputError::InvalidCount {
+            what: "block size",
+            block,
+            cell: 0,
+            value,
+        });
+    }
+    Ok(())
 }
 
 #[cfg(test)]

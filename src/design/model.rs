@@ -4,6 +4,7 @@
 //! fits, the expected information and the simulation of coarse records all start here.
 
 use super::{BaseRate, Design, RecordKind, Response, SharedParameter, split_trials};
+use crate::cells::coarsening::BlockKind;
 use crate::cells::error::SpecError;
 use crate::cells::observation_model::ObservationModel;
 use crate::cells::spec::{
@@ -123,4 +124,23 @@ fn lapse(l: LapseSpec, categories: usize, boundary: usize) -> Lapse {
             .map(|m| l.guess(m, categories, boundary))
             .collect(),
     }
+}
+
+/// Block sizes of `model` (built for `design`) at `trials` per condition: present and absent
+/// trials from the split, encounters = trials, the census as stated. Lets one model's
+/// per-block information serve every trial count.
+pub fn block_sizes(design: &Design, model: &ObservationModel, trials: u32) -> Vec<f64> {
+    model
+        .blocks()
+        .iter()
+        .map(|b| {
+            let split = || split_trials(trials, design.conditions[b.condition].presence);
+            match b.kind {
+                BlockKind::PresentTrials => f64::from(split().present),
+                BlockKind::AbsentTrials => f64::from(split().absent),
+                BlockKind::Encounters => f64::from(trials),
+                BlockKind::Census => b.n,
+            }
+        })
+        .collect()
 }

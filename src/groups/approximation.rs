@@ -19,14 +19,13 @@
 use super::hypotheses::{Contrast, GroupTest};
 use super::population::Population;
 use crate::cells::cell_probabilities::{Order, cell_probabilities};
-use crate::cells::coarsening::BlockKind;
 use crate::cells::information::{UnitInformation, precision};
 use crate::cells::likelihood::Counts;
 use crate::cells::newton::{FitOptions, Start, StopReason, fit};
 use crate::cells::observation_model::ObservationModel;
 use crate::cells::parameter_map::{SLOT_CRITERION, SLOT_D_PRIME, SLOT_LN_SIGMA, Slot};
+use crate::design::Design;
 use crate::design::model::condition_specs;
-use crate::design::{Design, split_trials};
 use crate::infer::Sided;
 use crate::model::{Observer, normal};
 use statrs::distribution::{ContinuousCDF, StudentsT};
@@ -157,20 +156,7 @@ impl Approximation {
     /// Block sizes at `trials` per condition (present/absent from the split, encounters =
     /// trials, census as stated).
     fn sizes(&self, trials: u32) -> Vec<f64> {
-        let conditions = &self.design.conditions;
-        self.model
-            .blocks()
-            .iter()
-            .map(|b| {
-                let split = || split_trials(trials, conditions[b.condition].presence);
-                match b.kind {
-                    BlockKind::PresentTrials => f64::from(split().present),
-                    BlockKind::AbsentTrials => f64::from(split().absent),
-                    BlockKind::Encounters => f64::from(trials),
-                    BlockKind::Census => b.n,
-                }
-            })
-            .collect()
+        crate::design::model::block_sizes(&self.design, &self.model, trials)
     }
 }
 
