@@ -68,10 +68,7 @@ pub struct AsymptoticSe {
 impl AsymptoticSe {
     /// Table label, as in the Monte Carlo tables: `d′`, `c[low]`, `π`.
     pub fn label(&self) -> String {
-        match &self.condition {
-            Some(c) => format!("{}[{c}]", self.quantity.label()),
-            None => self.quantity.label().to_string(),
-        }
+        self.quantity.label_in(self.condition.as_deref())
     }
 }
 

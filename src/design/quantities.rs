@@ -72,10 +72,7 @@ pub fn reported_quantities(specs: &[ConditionSpec]) -> Vec<ReportedQuantity> {
 
 /// Table label of a reported quantity, e.g. `d′` or `c[low]`.
 pub fn quantity_label(q: &ReportedQuantity) -> String {
-    match &q.label {
-        Some(c) => format!("{}[{c}]", q.quantity.label()),
-        None => q.quantity.label().to_string(),
-    }
+    q.quantity.label_in(q.label.as_deref())
 }
 
 #[cfg(test)]

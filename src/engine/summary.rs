@@ -94,18 +94,12 @@ pub struct ScenarioSummary {
 impl QuantitySummary {
     /// Label for tables, e.g. `c[low]`.
     pub fn label(&self) -> String {
-        match &self.condition {
-            Some(c) => format!("{}[{c}]", self.quantity.label()),
-            None => self.quantity.label().to_string(),
-        }
+        self.quantity.label_in(self.condition.as_deref())
     }
 
     /// Machine name for CSV, e.g. `criterion[low]`.
     pub fn key(&self) -> String {
-        match &self.condition {
-            Some(c) => format!("{}[{c}]", self.quantity.key()),
-            None => self.quantity.key().to_string(),
-        }
+        self.quantity.key_in(self.condition.as_deref())
     }
 }
 

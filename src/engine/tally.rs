@@ -30,6 +30,23 @@ impl Quantity {
         }
     }
 
+    /// Label of this quantity in a condition, e.g. `c[low]`; the bare label when the
+    /// quantity belongs to no single condition. The one rule every table uses.
+    pub fn label_in(self, condition: Option<&str>) -> String {
+        match condition {
+            Some(c) => format!("{}[{c}]", self.label()),
+            None => self.label().to_string(),
+        }
+    }
+
+    /// Machine name in a condition, e.g. `criterion[low]`.
+    pub fn key_in(self, condition: Option<&str>) -> String {
+        match condition {
+            Some(c) => format!("{}[{c}]", self.key()),
+            None => self.key().to_string(),
+        }
+    }
+
     /// Machine name for CSV and JSON.
     pub fn key(self) -> &'static str {
         match self {
