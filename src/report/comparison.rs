@@ -5,10 +5,10 @@
 //! sampling SD of d̂′ and ĉ across simulated experiments (the standard error an experiment
 //! of that size really has).
 
-use super::format::number;
+use super::format::figure;
 use super::style::{new_table, right_align};
 use crate::design::Response;
-use crate::engine::{Quantity, ScenarioSummary};
+use crate::engine::{Figure, Quantity, ScenarioSummary};
 use crate::plan::Plan;
 use serde::Serialize;
 use std::fmt::Write;
@@ -16,31 +16,33 @@ use std::fmt::Write;
 /// |bias of d̂′| above which the side-by-side block points out a biased yes/no estimate.
 pub const BIAS_NOTE: f64 = 0.03;
 
-/// One common trial count of a pair.
+/// One common trial count of a pair. Every figure carries its Monte Carlo SE; the two
+/// designs are simulated from independent streams, so a ratio's relative error is the
+/// root sum of squares of its parts' (delta method).
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct ComparisonRow {
     pub trials: u32,
-    pub sd_d_prime_yes_no: f64,
-    pub sd_d_prime_rating: f64,
-    pub sd_criterion_yes_no: f64,
-    pub sd_criterion_rating: f64,
-    /// RMSE with the rating scale ÷ RMSE with yes/no (bias included), for d′ and c.
-    pub rmse_ratio_d_prime: f64,
-    pub rmse_ratio_criterion: f64,
+    pub sd_d_prime_yes_no: Figure,
+    pub sd_d_prime_rating: Figure,
+    pub sd_criterion_yes_no: Figure,
+    pub sd_criterion_rating: Figure,
+    /// SD with the rating scale ÷ SD with yes/no.
+    pub ratio_d_prime: Figure,
+    pub ratio_criterion: Figure,
+    /// RMSE with the rating scale ÷ RMSE with yes/no (bias included).
+    pub rmse_ratio_d_prime: Figure,
+    pub rmse_ratio_criterion: Figure,
     /// Bias of the yes/no and rating estimates of d′ (shows a wrong equal-variance model).
-    pub bias_d_prime_yes_no: f64,
-    pub bias_d_prime_rating: f64,
+    pub bias_d_prime_yes_no: Figure,
+    pub bias_d_prime_rating: Figure,
 }
 
-impl ComparisonRow {
-    /// SD with the rating scale ÷ SD with yes/no, for d′.
-    pub fn ratio_d_prime(&self) -> f64 {
-        self.sd_d_prime_rating / self.sd_d_prime_yes_no
-    }
-
-    /// SD with the rating scale ÷ SD with yes/no, for c.
-    pub fn ratio_criterion(&self) -> f64 {
-        self.sd_criterion_rating / self.sd_criterion_yes_no
+/// a ÷ b with its Monte Carlo SE, for independent a and b.
+fn ratio(a: Figure, b: Figure) -> Figure {
+    let value = a.value / b.value;
+    Figure {
+        value,
+        mc_se: value.abs() * ((a.mc_se / a.value).powi(2) + (b.mc_se / b.value).powi(2)).sqrt(),
     }
 }
 
@@ -97,29 +99,33 @@ fn row(summaries: &[ScenarioSummary], y: usize, r: usize, trials: u32) -> Option
             .find(|s| s.scenario.design == d && s.scenario.trials == trials)
     };
     let (ys, rs) = (find(y)?, find(r)?);
-    let sd = |s: &ScenarioSummary, q: Quantity| s.quantity(q).map(|x| x.sd.value);
-    let rmse = |s: &ScenarioSummary, q: Quantity| s.quantity(q).map(|x| x.rmse.value);
-    let bias = |s: &ScenarioSummary| s.quantity(Quantity::DPrime).map(|x| x.bias.value);
+    let get = |s: &ScenarioSummary, q: Quantity| s.quantity(q).cloned();
+    let (yd, rd) = (get(ys, Quantity::DPrime)?, get(rs, Quantity::DPrime)?);
+    let (yc, rc) = (get(ys, Quantity::Criterion)?, get(rs, Quantity::Criterion)?);
     Some(ComparisonRow {
         trials,
-        sd_d_prime_yes_no: sd(ys, Quantity::DPrime)?,
-        sd_d_prime_rating: sd(rs, Quantity::DPrime)?,
-        sd_criterion_yes_no: sd(ys, Quantity::Criterion)?,
-        sd_criterion_rating: sd(rs, Quantity::Criterion)?,
-        rmse_ratio_d_prime: rmse(rs, Quantity::DPrime)? / rmse(ys, Quantity::DPrime)?,
-        rmse_ratio_criterion: rmse(rs, Quantity::Criterion)? / rmse(ys, Quantity::Criterion)?,
-        bias_d_prime_yes_no: bias(ys)?,
-        bias_d_prime_rating: bias(rs)?,
+        sd_d_prime_yes_no: yd.sd,
+        sd_d_prime_rating: rd.sd,
+        sd_criterion_yes_no: yc.sd,
+        sd_criterion_rating: rc.sd,
+        ratio_d_prime: ratio(rd.sd, yd.sd),
+        ratio_criterion: ratio(rc.sd, yc.sd),
+        rmse_ratio_d_prime: ratio(rd.rmse, yd.rmse),
+        rmse_ratio_criterion: ratio(rc.rmse, yc.rmse),
+        bias_d_prime_yes_no: yd.bias,
+        bias_d_prime_rating: rd.bias,
     })
 }
 
-/// "cuts the SE of c by 23%" or "raises the SE of c by 5%".
-fn change(ratio: f64, what: &str) -> String {
-    let pct = (100.0 * (1.0 - ratio)).round();
+/// "cuts the SE of c by 23% (± 2)" or "raises the SE of c by 5% (± 2)"; ± is the Monte
+/// Carlo SE in percentage points.
+fn change(ratio: Figure, what: &str) -> String {
+    let pct = (100.0 * (1.0 - ratio.value)).round();
+    let pm = (100.0 * ratio.mc_se).round();
     if pct >= 0.0 {
-        format!("cuts the SE of {what} by {pct:.0}%")
+        format!("cuts the SE of {what} by {pct:.0}% (± {pm:.0})")
     } else {
-        format!("raises the SE of {what} by {:.0}%", -pct)
+        format!("raises the SE of {what} by {:.0}% (± {pm:.0})", -pct)
     }
 }
 
@@ -146,14 +152,14 @@ pub fn render(comparisons: &[Comparison]) -> String {
         for r in &c.rows {
             t.add_row(vec![
                 r.trials.to_string(),
-                number(r.sd_d_prime_yes_no, 3),
-                number(r.sd_d_prime_rating, 3),
-                number(r.ratio_d_prime(), 2),
-                number(r.sd_criterion_yes_no, 3),
-                number(r.sd_criterion_rating, 3),
-                number(r.ratio_criterion(), 2),
-                number(r.rmse_ratio_d_prime, 2),
-                number(r.rmse_ratio_criterion, 2),
+                figure(&r.sd_d_prime_yes_no, 3),
+                figure(&r.sd_d_prime_rating, 3),
+                figure(&r.ratio_d_prime, 2),
+                figure(&r.sd_criterion_yes_no, 3),
+                figure(&r.sd_criterion_rating, 3),
+                figure(&r.ratio_criterion, 2),
+                figure(&r.rmse_ratio_d_prime, 2),
+                figure(&r.rmse_ratio_criterion, 2),
             ]);
         }
         right_align(&mut t, 0..9);
@@ -167,8 +173,8 @@ pub fn render(comparisons: &[Comparison]) -> String {
                 out,
                 "Reading: recording the {}-step response {} and {} at {} trials.",
                 c.categories,
-                change(r.ratio_criterion(), "c"),
-                change(r.ratio_d_prime(), "d′"),
+                change(r.ratio_criterion, "c"),
+                change(r.ratio_d_prime, "d′"),
                 r.trials
             );
             if c.rows.len() == 1 {
@@ -176,13 +182,13 @@ pub fn render(comparisons: &[Comparison]) -> String {
             }
         }
         if let Some(last) = c.rows.last()
-            && last.bias_d_prime_yes_no.abs() > BIAS_NOTE
-            && last.bias_d_prime_yes_no.abs() > 2.0 * last.bias_d_prime_rating.abs()
+            && last.bias_d_prime_yes_no.value.abs() > BIAS_NOTE
+            && last.bias_d_prime_yes_no.value.abs() > 2.0 * last.bias_d_prime_rating.value.abs()
         {
             let _ = writeln!(
                 out,
                 "Note: at {} trials the yes/no estimate of d′ is biased by {:+.3} (rating: {:+.3}); the yes/no model assumes equal variances, and more trials do not remove that bias.",
-                last.trials, last.bias_d_prime_yes_no, last.bias_d_prime_rating
+                last.trials, last.bias_d_prime_yes_no.value, last.bias_d_prime_rating.value
             );
         }
         if let Some(gap) = c.criterion_mismatch {
@@ -202,7 +208,11 @@ mod tests {
 
     #[test]
     fn readings_say_cut_or_raise() {
-        assert_eq!(change(0.77, "c"), "cuts the SE of c by 23%");
-        assert_eq!(change(1.05, "d′"), "raises the SE of d′ by 5%");
+        let f = |value, mc_se| Figure { value, mc_se };
+        assert_eq!(change(f(0.77, 0.02), "c"), "cuts the SE of c by 23% (± 2)");
+        assert_eq!(
+            change(f(1.05, 0.01), "d′"),
+            "raises the SE of d′ by 5% (± 1)"
+        );
     }
 }
