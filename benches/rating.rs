@@ -9,9 +9,9 @@ use std::hint::black_box;
 use vigil::design::{Condition, RatingScale, Split};
 use vigil::engine::parallel::run_replicates;
 use vigil::engine::rating_kernel::RatingKernel;
-use vigil::engine::z_critical;
-use vigil::fit::RateCorrection;
+use vigil::infer::z_critical;
 use vigil::model::Observer;
+use vigil::vocab::RateCorrection;
 
 const REPLICATES: u64 = 20_000;
 

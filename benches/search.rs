@@ -7,7 +7,7 @@ use criterion::{Criterion, criterion_group, criterion_main};
 use std::hint::black_box;
 use std::path::Path;
 use vigil::plan::Plan;
-use vigil::power::search::search_plan;
+use vigil::search::search_plan;
 
 fn whole_search(c: &mut Criterion) {
     let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("plans/base-rate-shift.toml");

@@ -6,10 +6,11 @@ use std::hint::black_box;
 use std::path::Path;
 use vigil::engine::parallel::run_replicates;
 use vigil::engine::yesno_kernel::YesNoKernel;
-use vigil::engine::{RunOptions, run_plan, z_critical};
-use vigil::fit::RateCorrection;
+use vigil::evaluate::{RunOptions, run_plan};
+use vigil::infer::z_critical;
 use vigil::model::Observer;
 use vigil::plan::Plan;
+use vigil::vocab::RateCorrection;
 
 const REPLICATES: u64 = 1_000_000;
 

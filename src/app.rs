@@ -3,7 +3,8 @@
 //! Exit codes: 0 success; 2 bad input (plan, options, output path); 1 anything else
 //! (an I/O failure while writing results).
 
-use crate::engine::{self, RunError, RunOptions, ScenarioSummary};
+use crate::engine::ScenarioSummary;
+use crate::evaluate::{self, RunError, RunOptions};
 use crate::plan::{Plan, PlanError};
 use crate::report::{self, PendingFile};
 use std::fmt::Write;
@@ -120,7 +121,7 @@ impl PreparedRun {
         } else {
             0
         };
-        engine::total_replicates(&self.plan, self.options) + groups
+        evaluate::total_replicates(&self.plan, self.options) + groups
     }
 }
 
@@ -134,7 +135,7 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
         plan.study.experiments = n;
     }
     let options = RunOptions { exact: req.exact };
-    engine::preflight(&plan, options)?;
+    evaluate::preflight(&plan, options)?;
     let claim = |p: &Option<PathBuf>| -> Result<Option<PendingFile>, AppError> {
         p.as_ref()
             .map(|path| {
@@ -158,12 +159,12 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
 /// Runs a prepared plan, writes the output files whole and returns the terminal report.
 pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<String, AppError> {
     let plan = &run.plan;
-    let summaries = engine::run_plan(plan, run.options, progress)?;
+    let summaries = evaluate::run_plan(plan, run.options, progress)?;
     // With [animals] the targets are judged at group level (the effort split), not for
     // one idealised animal.
     let searches =
         if plan.targets.any(&plan.hypotheses) && !run.options.exact && plan.animals.is_none() {
-            crate::power::search::search_plan(plan, progress)?
+            crate::search::search_plan(plan, progress)?
         } else {
             Vec::new()
         };
@@ -196,7 +197,7 @@ pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<Stri
 fn write_outputs(
     plan: &Plan,
     summaries: &[ScenarioSummary],
-    searches: &[crate::power::search::SearchResult],
+    searches: &[crate::search::SearchResult],
     groups: Option<&crate::groups::GroupReport>,
     csv: Option<PendingFile>,
     json: Option<PendingFile>,

@@ -9,7 +9,7 @@ use crate::analytic::information::InformationError;
 use crate::analytic::scan::{ScanOptions, scan_plan};
 use crate::analytic::trial_grid::{DEFAULT_POINTS, MIN_TRIALS};
 use crate::app::AppError;
-use crate::engine::RunError;
+use crate::evaluate::RunError;
 use crate::plan::{Plan, PlanError};
 use crate::report::{self, PendingFile};
 use std::path::{Path, PathBuf};

@@ -3,14 +3,15 @@
 //! ranges of a design that cannot separate its parameters.
 
 use vigil::analytic::information::{DesignInformation, information_grid, scenario_information};
-use vigil::analytic::verdict::{RangeEnd, Verdict, plain_verdict};
 use vigil::cells::cell_probabilities::{Order, cell_probabilities};
 use vigil::cells::information::expected_information;
 use vigil::cells::observation_model::ObservationModel;
+use vigil::cells::verdict::{RangeEnd, Verdict};
 use vigil::design::model::condition_specs;
-use vigil::engine::Quantity;
 use vigil::model::normal;
 use vigil::plan::Plan;
+use vigil::report::identification_text::verdict_sentence;
+use vigil::vocab::Quantity;
 
 /// A one-design plan (invented numbers) with extra design keys.
 fn plan(d_prime: f64, criterion: f64, presence: f64, trials: u32, extra: &str) -> Plan {
@@ -192,7 +193,10 @@ fn unknown_base_rate_names_its_null_direction_and_profiles_d_prime() {
     assert_eq!(*deficiency, 1);
     assert_eq!(confounded, &["d′", "c", "the base rate"]);
     assert!(info.quantities.iter().all(|q| q.se.is_none()));
-    assert!(plain_verdict(&info).starts_with("not identified: d′, c and the base rate"));
+    assert!(
+        verdict_sentence(&info.verdict, info.corr_d_prime_criterion)
+            .starts_with("not identified: d′, c and the base rate")
+    );
     // Parse "logit π − 0.35·c + 0.17·d′" into θ order (d′, c, logit π).
     // The first (largest) coefficient is 1 and printed bare.
     let mut v = [0.0; 3];
@@ -251,7 +255,7 @@ fn a_tiny_census_at_huge_counts_is_weak_with_its_figures() {
         panic!("{:?}", info.verdict)
     };
     assert!(max_abs_corr > 0.95);
-    let text = plain_verdict(&info);
+    let text = verdict_sentence(&info.verdict, info.corr_d_prime_criterion);
     assert!(
         text.starts_with("weakly identified: condition number") && text.contains("|r(d′, c)|"),
         "{text}"

@@ -1,7 +1,7 @@
 //! Error-totals records: information against a hand-written delta-method computation, the
 //! identification verdict with and without base-rate knowledge, and the value of a census.
 
-use vigil::cells::identifiability::{Verdict, assess};
+use vigil::cells::identifiability::{EigenVerdict, assess};
 use vigil::cells::information::{expected_information, precision};
 use vigil::cells::observation_model::ObservationModel;
 use vigil::cells::spec::{BaseRateKnowledge, ConditionSpec, Record};
@@ -109,7 +109,7 @@ fn unknown_base_rate_is_not_identified_with_one_null_direction() {
     let theta = m.hypothesised_theta();
     let info = expected_information(&m, &theta, &m.block_sizes()).unwrap();
     let id = assess(&info, m.parameters().names()).unwrap();
-    let Verdict::NotIdentified {
+    let EigenVerdict::NotIdentified {
         deficiency,
         null_directions,
     } = &id.verdict
@@ -133,7 +133,7 @@ fn census_identifies_and_larger_census_shrinks_the_errors() {
         let info = expected_information(&m, &theta, &m.block_sizes()).unwrap();
         let id = assess(&info, m.parameters().names()).unwrap();
         assert_eq!(id.rank, 3, "census {size}: {:?}", id.verdict);
-        assert!(!matches!(id.verdict, Verdict::NotIdentified { .. }));
+        assert!(!matches!(id.verdict, EigenVerdict::NotIdentified { .. }));
         let p = precision(&m, &theta, &info).unwrap().unwrap();
         let c = &p.conditions[0];
         let (sd, sc) = (c.se_d_prime.unwrap(), c.se_criterion.unwrap());
@@ -182,7 +182,7 @@ fn two_condition_census_design_end_to_end() {
     let info = expected_information(&model, &theta, &model.block_sizes()).unwrap();
     assert!(matches!(
         assess(&info, names).unwrap().verdict,
-        Verdict::Identified
+        EigenVerdict::Identified
     ));
     let p = precision(&model, &theta, &info).unwrap().unwrap();
     assert!(p.conditions[0].se_d_prime.unwrap() > 0.0);

@@ -4,7 +4,7 @@
 
 use vigil::design::model::condition_specs;
 use vigil::design::quantities::{quantity_label, reported_quantities};
-use vigil::engine::{RunOptions, run_plan};
+use vigil::evaluate::{RunOptions, run_plan};
 use vigil::plan::Plan;
 
 /// Linked conditions, coarse records, sharing of every kind (invented numbers).

@@ -6,11 +6,13 @@ use std::path::Path;
 use vigil::analytic::exact;
 use vigil::engine::summary::{Method, summarise};
 use vigil::engine::yesno_kernel::YesNoKernel;
-use vigil::engine::{Quantity, z_critical};
-use vigil::fit::{RateCorrection, YesNoFit, ZEntry, fit_yes_no, z_variance};
+use vigil::fit::{YesNoFit, ZEntry, fit_yes_no, z_variance};
 use vigil::infer::wilson_interval;
+use vigil::infer::z_critical;
 use vigil::model::{Observer, YesNoMeasures, normal};
 use vigil::plan::Scenario;
+use vigil::vocab::Quantity;
+use vigil::vocab::RateCorrection;
 
 fn golden(name: &str) -> Vec<Value> {
     let path = Path::new(env!("CARGO_MANIFEST_DIR"))

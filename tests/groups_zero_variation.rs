@@ -17,11 +17,12 @@ use vigil::design::Split;
 use vigil::engine::parallel::run_replicates;
 use vigil::engine::summary::{Method, summarise};
 use vigil::engine::yesno_kernel::YesNoKernel;
-use vigil::engine::{Quantity, z_critical};
-use vigil::fit::RateCorrection;
 use vigil::groups::run_groups;
+use vigil::infer::z_critical;
 use vigil::model::Observer;
 use vigil::plan::{Plan, Scenario};
+use vigil::vocab::Quantity;
+use vigil::vocab::RateCorrection;
 
 const R: u64 = 4000;
 const ANIMALS: u32 = 8;

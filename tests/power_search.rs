@@ -5,11 +5,11 @@
 
 use std::path::Path;
 use vigil::cells::information::{UnitInformation, precision};
-use vigil::engine::{RunOptions, run_plan};
+use vigil::evaluate::{RunOptions, run_plan};
 use vigil::model::normal;
 use vigil::plan::Plan;
 use vigil::power::asymptotic;
-use vigil::power::search::{SearchOutcome, search_design};
+use vigil::search::{SearchOutcome, search_design};
 
 /// Two linked yes/no conditions with d′ per condition and criteria `c_low`, `c_high`.
 fn plan(extra: &str, d_low: f64, d_high: f64, trials: &str, seed: u64, experiments: u64) -> Plan {

@@ -4,10 +4,12 @@
 //! is the yes/no model).
 
 use std::path::Path;
-use vigil::engine::{Quantity, RunOptions, run_plan};
+use vigil::evaluate::{RunOptions, run_plan};
 use vigil::fit::rating::{FitOptions, RatingTable, apply_correction, fit, measures};
-use vigil::fit::{RateCorrection, fit_yes_no, z_variance};
+use vigil::fit::{fit_yes_no, z_variance};
 use vigil::plan::Plan;
+use vigil::vocab::Quantity;
+use vigil::vocab::RateCorrection;
 
 fn rating_plan(trials: u32, experiments: u64, fix_sigma: bool) -> Plan {
     let text = format!(

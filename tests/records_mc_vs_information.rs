@@ -3,8 +3,9 @@
 //! common practice). Threshold: 5 Monte Carlo SEs of the SD plus 3% for the O(1/n) gap.
 
 use std::path::Path;
-use vigil::engine::{Quantity, RunOptions, run_plan};
+use vigil::evaluate::{RunOptions, run_plan};
 use vigil::plan::Plan;
+use vigil::vocab::Quantity;
 
 fn check(record: &str) {
     let text = format!(

@@ -3,9 +3,11 @@
 //! Statistical checks use stated thresholds in Monte Carlo standard errors.
 
 use std::path::Path;
-use vigil::engine::{Method, Quantity, RunOptions, ScenarioSummary, run_plan};
+use vigil::engine::{Method, ScenarioSummary};
+use vigil::evaluate::{RunOptions, run_plan};
 use vigil::model::normal;
 use vigil::plan::Plan;
+use vigil::vocab::Quantity;
 
 fn plan(
     d_prime: f64,

@@ -17,7 +17,6 @@ use nalgebra::DMatrix;
 use serde::Serialize;
 use thiserror::Error;
 
-use super::verdict::{ParameterNames, ProfileRange, Verdict, from_assessment};
 use crate::cells::cell_probabilities::{Order, cell_probabilities};
 use crate::cells::error::{InputError, SpecError};
 use crate::cells::identifiability::assess;
@@ -26,11 +25,12 @@ use crate::cells::likelihood::Counts;
 use crate::cells::newton::{FitOptions, Start, fit};
 use crate::cells::observation_model::ObservationModel;
 use crate::cells::profile::{ProfileOptions, ProfileTarget, profile_interval};
+use crate::cells::verdict::{ParameterNames, ProfileRange, Verdict, from_assessment};
 use crate::design::Design;
 use crate::design::model::condition_specs;
 use crate::design::quantities::{ReportedQuantity, reported_quantities};
-use crate::engine::Quantity;
 use crate::plan::Plan;
+use crate::vocab::Quantity;
 
 use super::trial_grid::fits_design;
 

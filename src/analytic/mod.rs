@@ -5,4 +5,3 @@ pub mod exact;
 pub mod information;
 pub mod scan;
 pub mod trial_grid;
-pub mod verdict;

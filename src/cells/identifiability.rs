@@ -49,7 +49,7 @@ impl std::fmt::Display for NullDirection {
 
 /// Identification verdict of a design at θ.
 #[derive(Debug, Clone, PartialEq)]
-pub enum Verdict {
+pub enum EigenVerdict {
     Identified,
     Weak {
         condition_number: f64,
@@ -72,7 +72,7 @@ pub struct Identifiability {
     pub condition_number: f64,
     /// Largest |corr| between two estimates (NaN unless full rank; 0 with one parameter).
     pub max_abs_corr: f64,
-    pub verdict: Verdict,
+    pub verdict: EigenVerdict,
 }
 
 /// Scale factors D and the eigen-decomposition of D⁻¹ I D⁻¹ (eigenvalues ascending).
@@ -188,7 +188,7 @@ pub fn assess(info: &DMatrix<f64>, names: &[String]) -> Result<Identifiability, 
             let null_directions = (0..dim - rank)
                 .map(|c| null_direction(&eig, c, names))
                 .collect();
-            let verdict = Verdict::NotIdentified {
+            let verdict = EigenVerdict::NotIdentified {
                 deficiency: dim - rank,
                 null_directions,
             };
@@ -203,12 +203,12 @@ pub fn assess(info: &DMatrix<f64>, names: &[String]) -> Result<Identifiability, 
                 }
             }
             let verdict = if condition_number > WEAK_CONDITION_NUMBER || corr > WEAK_CORRELATION {
-                Verdict::Weak {
+                EigenVerdict::Weak {
                     condition_number,
                     max_abs_corr: corr,
                 }
             } else {
-                Verdict::Identified
+                EigenVerdict::Identified
             };
             (corr, verdict)
         }
@@ -236,7 +236,7 @@ mod tests {
         // I = g gᵀ with g = (2, −1): null direction ∝ (1, 2) → "0.50·a + b".
         let info = DMatrix::from_row_slice(2, 2, &[4.0, -2.0, -2.0, 1.0]);
         let id = assess(&info, &names(&["a", "b"])).unwrap();
-        let Verdict::NotIdentified {
+        let EigenVerdict::NotIdentified {
             deficiency,
             null_directions,
         } = &id.verdict
@@ -254,11 +254,11 @@ mod tests {
     fn strong_correlation_is_weak() {
         let info = DMatrix::from_row_slice(2, 2, &[1.0, 0.99, 0.99, 1.0]);
         let id = assess(&info, &names(&["a", "b"])).unwrap();
-        assert!(matches!(id.verdict, Verdict::Weak { .. }));
+        assert!(matches!(id.verdict, EigenVerdict::Weak { .. }));
         assert!((id.max_abs_corr - 0.99).abs() < 1e-9);
         let diag = DMatrix::from_diagonal(&DVector::from_vec(vec![3.0, 0.5]));
         let id = assess(&diag, &names(&["a", "b"])).unwrap();
-        assert_eq!(id.verdict, Verdict::Identified);
+        assert_eq!(id.verdict, EigenVerdict::Identified);
         assert!((id.condition_number - 1.0).abs() < 1e-12);
     }
 

@@ -26,3 +26,4 @@ pub mod observation_model;
 pub mod parameter_map;
 pub mod profile;
 pub mod spec;
+pub mod verdict;

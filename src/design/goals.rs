@@ -1,8 +1,8 @@
 //! What the experiment must show: hypotheses tested on every simulated dataset, the
 //! targets the smallest experiment must meet, and the group of animals it is run on.
 
-use crate::engine::Quantity;
-use crate::infer::Sided;
+use crate::vocab::Quantity;
+use crate::vocab::Sided;
 use serde::Serialize;
 
 /// The kinds of hypothesis vigil tests.

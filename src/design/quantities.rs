@@ -9,7 +9,7 @@
 //! order, because the trade-off figures r(d̂′, ĉ) read those two.
 
 use crate::cells::spec::{BaseRateLink, ConditionSpec, Role};
-use crate::engine::Quantity;
+use crate::vocab::Quantity;
 
 /// One reported natural quantity of a design.
 #[derive(Debug, Clone, PartialEq)]

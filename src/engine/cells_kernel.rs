@@ -6,7 +6,7 @@
 //! analysis would use, without lapses, so lapses show up as bias, as they would in data.
 
 use super::parallel::Kernel;
-use super::tally::{EstimateTally, Outcome, Quantity, QuantityTally, TestTally};
+use super::tally::{EstimateTally, Outcome, QuantityTally, TestTally};
 use crate::cells::cell_probabilities::{Order, cell_probabilities};
 use crate::cells::coarsening::BlockKind;
 use crate::cells::error::SpecError;
@@ -17,11 +17,13 @@ use crate::cells::observation_model::ObservationModel;
 use crate::design::Design;
 use crate::design::model::{condition_specs, truth_specs};
 use crate::design::quantities::reported_quantities;
-use crate::fit::RateCorrection;
-use crate::infer::{Sided, likelihood_ratio_test, signed_root_test, wald_test};
+use crate::engine::Contrast;
+use crate::infer::{likelihood_ratio_test, signed_root_test, wald_test};
 use crate::model::Observer;
-use crate::power::Contrast;
 use crate::simulate::{ReplicateRng, multinomial_into};
+use crate::vocab::Quantity;
+use crate::vocab::RateCorrection;
+use crate::vocab::Sided;
 
 /// Which natural quantity of which condition a tally slot holds.
 #[derive(Debug, Clone, Copy, PartialEq)]

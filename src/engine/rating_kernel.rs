@@ -3,15 +3,16 @@
 //! allocation-free unequal-variance fit of `fit::rating`.
 
 use super::parallel::Kernel;
-use super::tally::{EstimateTally, Outcome, Quantity, QuantityTally};
+use super::tally::{EstimateTally, Outcome, QuantityTally};
 use crate::design::{Condition, RatingScale, Split};
-use crate::fit::RateCorrection;
 use crate::fit::rating::{
     FitOptions, FitStatus, MAX_CATEGORIES, ParamsError, RatingParams, RatingTable,
     apply_correction, degeneracy, fit, measures,
 };
 use crate::model::{Observer, normal};
 use crate::simulate::{ReplicateRng, multinomial_into};
+use crate::vocab::Quantity;
+use crate::vocab::RateCorrection;
 
 /// Precomputed category probabilities and settings for one rating scenario.
 #[derive(Debug, Clone)]

@@ -4,7 +4,9 @@
 //! (Wilson 1927). Exact enumeration has no Monte Carlo error: its SEs are 0 and its
 //! intervals collapse to the value.
 
-use super::tally::{DatasetWeights, EstimateTally, Quantity, QuantityTally};
+use crate::vocab::Quantity;
+
+use super::tally::{DatasetWeights, EstimateTally, QuantityTally};
 use crate::infer::wilson_interval;
 use crate::plan::Scenario;
 use serde::Serialize;
@@ -88,7 +90,7 @@ pub struct ScenarioSummary {
     pub tests: Vec<TestSummary>,
     /// The expected information's verdict in plain words when the design is weakly or not
     /// identified (with profile-likelihood ranges of d′ and c when not identified).
-    pub identifiability: Option<String>,
+    pub identification: Option<crate::cells::verdict::Identification>,
 }
 
 impl QuantitySummary {
@@ -151,7 +153,7 @@ pub fn summarise(
                 likelihood_ratio: share(t.likelihood_ratio, tally.datasets.total, exact),
             })
             .collect(),
-        identifiability: None,
+        identification: None,
     }
 }
 

@@ -1,65 +1,8 @@
 //! Streaming tallies of fitted estimates: memory is fixed, whatever the replicate count.
 
 use crate::infer::{CoMoments, Moments};
+use crate::vocab::Quantity;
 use serde::Serialize;
-
-/// A quantity the report summarises.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "snake_case")]
-pub enum Quantity {
-    DPrime,
-    Criterion,
-    Sigma,
-    Slope,
-    DA,
-    Az,
-    BaseRate,
-}
-
-impl Quantity {
-    /// Label for tables.
-    pub fn label(self) -> &'static str {
-        match self {
-            Self::DPrime => "d′",
-            Self::Criterion => "c",
-            Self::Sigma => "σ",
-            Self::Slope => "zROC slope",
-            Self::DA => "d_a",
-            Self::Az => "A_z",
-            Self::BaseRate => "π",
-        }
-    }
-
-    /// Label of this quantity in a condition, e.g. `c[low]`; the bare label when the
-    /// quantity belongs to no single condition. The one rule every table uses.
-    pub fn label_in(self, condition: Option<&str>) -> String {
-        match condition {
-            Some(c) => format!("{}[{c}]", self.label()),
-            None => self.label().to_string(),
-        }
-    }
-
-    /// Machine name in a condition, e.g. `criterion[low]`.
-    pub fn key_in(self, condition: Option<&str>) -> String {
-        match condition {
-            Some(c) => format!("{}[{c}]", self.key()),
-            None => self.key().to_string(),
-        }
-    }
-
-    /// Machine name for CSV and JSON.
-    pub fn key(self) -> &'static str {
-        match self {
-            Self::DPrime => "d_prime",
-            Self::Criterion => "criterion",
-            Self::Sigma => "sigma",
-            Self::Slope => "zroc_slope",
-            Self::DA => "d_a",
-            Self::Az => "a_z",
-            Self::BaseRate => "base_rate",
-        }
-    }
-}
 
 /// Running sums for one estimated quantity.
 #[derive(Debug, Clone, PartialEq)]

@@ -2,10 +2,12 @@
 //! alias-table draws and two z-table lookups.
 
 use super::parallel::Kernel;
-use super::tally::{EstimateTally, Outcome, Quantity, QuantityTally};
-use crate::fit::{RateCorrection, YesNoFit, ZTable};
+use super::tally::{EstimateTally, Outcome, QuantityTally};
+use crate::fit::{YesNoFit, ZTable};
 use crate::model::Observer;
 use crate::simulate::{BinomialTable, ReplicateRng};
+use crate::vocab::Quantity;
+use crate::vocab::RateCorrection;
 
 /// Precomputed sampling and fitting tables for one yes/no scenario.
 #[derive(Debug, Clone)]

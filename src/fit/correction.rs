@@ -3,43 +3,9 @@
 //! The choice is the plan's, named, and reported: every summary says how many datasets
 //! needed it.
 
-use serde::Serialize;
-
-/// A named rule for rates of 0 or 1.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum RateCorrection {
-    /// Add ½ to every cell, extreme or not: rate = (x + ½)/(n + 1) (Hautus 1995).
-    LogLinear,
-    /// Only extreme rates move: 0 → 1/(2n), 1 → 1 − 1/(2n) (Macmillan & Kaplan 1985).
-    HalfN,
-    /// No correction: a dataset with a rate of 0 or 1 is degenerate and left out.
-    None,
-}
+use crate::vocab::RateCorrection;
 
 impl RateCorrection {
-    /// Names accepted in plan files, in the order shown to users.
-    pub const NAMES: [&'static str; 3] = ["log-linear", "half-n", "none"];
-
-    /// Parses a plan value; `None` when the name is not one of [`Self::NAMES`].
-    pub fn from_name(name: &str) -> Option<Self> {
-        match name {
-            "log-linear" => Some(Self::LogLinear),
-            "half-n" => Some(Self::HalfN),
-            "none" => Some(Self::None),
-            _ => Option::None,
-        }
-    }
-
-    /// The plan-file name of this rule.
-    pub fn name(self) -> &'static str {
-        match self {
-            Self::LogLinear => "log-linear",
-            Self::HalfN => "half-n",
-            Self::None => "none",
-        }
-    }
-
     /// The rate used for `x` events out of `n` trials, or `None` when the rule leaves
     /// the dataset degenerate (rate 0 or 1 with no correction). `n` must be positive.
     pub fn rate(self, x: u32, n: u32) -> Option<f64> {

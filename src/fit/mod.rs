@@ -7,5 +7,4 @@ pub mod correction;
 pub mod rating;
 pub mod yesno;
 
-pub use correction::RateCorrection;
 pub use yesno::{YesNoFit, ZEntry, ZTable, fit_yes_no, z_variance};

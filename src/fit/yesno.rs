@@ -4,8 +4,8 @@
 //! count has a z value and a variance known in advance: a fit is two table lookups. This
 //! is what lets the engine fit millions of datasets per second per core.
 
-use super::correction::RateCorrection;
 use crate::model::{YesNoMeasures, normal};
+use crate::vocab::RateCorrection;
 
 /// z of one rate and the Gourevitch & Galanter (1967) variance of that z:
 /// Var z(p̂) ≈ p(1−p) / (n φ(z)²), evaluated at the (corrected) estimated rate.

@@ -19,9 +19,9 @@ use crate::cells::observation_model::ObservationModel;
 use crate::cells::parameter_map::{SLOT_CRITERION, SLOT_D_PRIME, SLOT_LN_SIGMA, Slot};
 use crate::design::Design;
 use crate::design::model::condition_specs;
-use crate::fit::RateCorrection;
 use crate::model::Observer;
 use crate::simulate::{ReplicateRng, multinomial_into};
+use crate::vocab::RateCorrection;
 
 /// The general path of one design at one trial count.
 #[derive(Debug, Clone)]

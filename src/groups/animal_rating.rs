@@ -7,13 +7,13 @@
 use super::animal::{AnimalEstimate, AnimalPath, PooledEstimate};
 use super::population::Deviation;
 use crate::design::{Condition, RatingScale, Split};
-use crate::fit::RateCorrection;
 use crate::fit::rating::{
     FitOptions, FitStatus, MAX_CATEGORIES, RatingMeasures, RatingParams, RatingTable,
     apply_correction, degeneracy, fit, measures,
 };
 use crate::model::Observer;
 use crate::simulate::{ReplicateRng, multinomial_into};
+use crate::vocab::RateCorrection;
 
 /// Category counts of absent and present trials; entries past K are 0.
 #[derive(Debug, Clone, Copy, PartialEq)]

@@ -6,9 +6,10 @@
 use super::animal::{AnimalEstimate, AnimalPath, PooledEstimate};
 use super::population::Deviation;
 use crate::design::{Condition, Split};
-use crate::fit::{RateCorrection, fit_yes_no};
+use crate::fit::fit_yes_no;
 use crate::model::Observer;
 use crate::simulate::ReplicateRng;
+use crate::vocab::RateCorrection;
 use rand_distr::{Binomial, Distribution};
 
 /// Hits out of present trials and false alarms out of absent trials.

@@ -26,8 +26,8 @@ use crate::cells::observation_model::ObservationModel;
 use crate::cells::parameter_map::{SLOT_CRITERION, SLOT_D_PRIME, SLOT_LN_SIGMA, Slot};
 use crate::design::Design;
 use crate::design::model::condition_specs;
-use crate::infer::Sided;
 use crate::model::{Observer, normal};
+use crate::vocab::Sided;
 use statrs::distribution::{ContinuousCDF, StudentsT};
 
 /// What the approximation fixes for one design.

@@ -17,7 +17,7 @@ use super::hypotheses::GroupTest;
 use crate::analytic::trial_grid::{fits_design, log_spaced};
 use crate::design::Design;
 use crate::design::goals::Budget;
-use crate::engine::Quantity;
+use crate::vocab::Quantity;
 
 /// Most animals the search considers (the plan format's limit).
 pub const MAX_ANIMALS: u32 = 100_000;

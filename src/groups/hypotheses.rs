@@ -17,8 +17,9 @@
 use super::animal::{AnimalEstimate, PooledEstimate, criterion_index, d_prime_index};
 use crate::design::Design;
 use crate::design::goals::{Hypothesis, TestKind};
-use crate::infer::{Sided, one_sample_t, paired_t, wald_test, welch_t};
+use crate::infer::{one_sample_t, paired_t, wald_test, welch_t};
 use crate::plan::Plan;
+use crate::vocab::Sided;
 use serde::Serialize;
 
 /// What a hypothesis compares, in a design's condition indices.

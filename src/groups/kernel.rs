@@ -141,7 +141,7 @@ impl<P: AnimalPath> GroupKernel<P> {
             animals,
             tests,
             alpha,
-            z_crit: crate::engine::z_critical(level),
+            z_crit: crate::infer::z_critical(level),
             t_crit,
             truth,
         }

@@ -33,9 +33,9 @@ pub use population::Population;
 pub use summary::GroupSummary;
 
 use crate::design::goals::Budget;
-use crate::fit::RateCorrection;
 use crate::model::LapseSpec;
 use crate::plan::Plan;
+use crate::vocab::RateCorrection;
 use grid::{DesignSetup, grid_trials, run_point};
 use serde::Serialize;
 use std::sync::atomic::{AtomicU64, Ordering};

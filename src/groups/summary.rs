@@ -11,7 +11,8 @@ use super::kernel::{GroupTally, PrecisionTally, TestTally};
 use crate::design::goals::TestKind;
 use crate::engine::summary::MC_LEVEL;
 use crate::engine::{Figure, Share};
-use crate::infer::{Sided, wilson_interval};
+use crate::infer::wilson_interval;
+use crate::vocab::Sided;
 use serde::Serialize;
 
 /// How well a group study estimates a population mean.

@@ -5,7 +5,9 @@
 //! *Biometrics Bull.* 2:110–114; citations from memory). p-values come from statrs'
 //! Student t distribution.
 
-use super::{InferError, Moments, NullDistribution, Sided, TestOutcome, check_alpha, check_finite};
+use crate::vocab::Sided;
+
+use super::{InferError, Moments, NullDistribution, TestOutcome, check_alpha, check_finite};
 use statrs::distribution::{ContinuousCDF, StudentsT};
 
 /// Moments of a sample after checking every value is finite and there are ≥ 2 of them.

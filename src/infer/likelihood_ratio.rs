@@ -5,7 +5,9 @@
 //! root r = sign(θ̂ − θ₀)·√(2Δℓ) is asymptotically N(0, 1) and gives one-sided tests
 //! (common practice; e.g. Pawitan 2001, *In All Likelihood*, cited from memory).
 
-use super::{InferError, NullDistribution, Sided, TestOutcome, check_alpha, check_finite};
+use crate::vocab::Sided;
+
+use super::{InferError, NullDistribution, TestOutcome, check_alpha, check_finite};
 use statrs::distribution::{ChiSquared, ContinuousCDF};
 
 /// How far the restricted log-likelihood may exceed the full one and still be read as

@@ -25,18 +25,9 @@ pub use wald::{wald_interval, wald_test};
 pub use wilson::wilson_interval;
 
 use crate::model::normal;
-use serde::{Deserialize, Serialize};
+use serde::Serialize;
 
-/// Direction of the alternative hypothesis for a parameter θ against its null value θ₀.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
-pub enum Sided {
-    /// H₁: θ ≠ θ₀.
-    TwoSided,
-    /// H₁: θ > θ₀.
-    Greater,
-    /// H₁: θ < θ₀.
-    Less,
-}
+use crate::vocab::Sided;
 
 impl Sided {
     /// p-value from the lower-tail P(T ≤ t) and upper-tail P(T ≥ t) probabilities of a
@@ -143,6 +134,12 @@ pub(crate) fn z_for_level(level: f64) -> Result<f64, InferError> {
         return Err(InferError::Level(level));
     }
     normal::z(1.0 - 0.5 * (1.0 - level)).ok_or(InferError::Level(level))
+}
+
+/// Critical value of a two-sided Wald interval at `level`, z_{1−(1−level)/2}; NaN for a
+/// level outside (0, 1) (plans validate the level, so NaN never reaches a report).
+pub fn z_critical(level: f64) -> f64 {
+    z_for_level(level).unwrap_or(f64::NAN)
 }
 
 /// One-sided critical value z = Φ⁻¹(1 − α) for 0 < α < 1.

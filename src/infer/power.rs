@@ -1,7 +1,9 @@
 //! Normal-approximation power of a Wald test (common practice for maximum-likelihood
 //! estimates: under the alternative, z = (θ̂ − θ₀)/SE ≈ N(δ/SE, 1) with δ = θ − θ₀).
 
-use super::{InferError, Sided, check_alpha, check_finite, check_standard_error, z_upper};
+use crate::vocab::Sided;
+
+use super::{InferError, check_alpha, check_finite, check_standard_error, z_upper};
 use crate::model::normal;
 
 /// Power of a Wald test at level α for a true effect δ = θ − θ₀ whose estimate has

@@ -1,8 +1,10 @@
 //! Wald interval and Wald test from an estimate and its standard error (asymptotic
 //! normality of maximum-likelihood estimates; common practice).
 
+use crate::vocab::Sided;
+
 use super::{
-    InferError, Interval, NullDistribution, Sided, TestOutcome, check_alpha, check_finite,
+    InferError, Interval, NullDistribution, TestOutcome, check_alpha, check_finite,
     check_standard_error, z_for_level,
 };
 

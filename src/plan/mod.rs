@@ -19,9 +19,9 @@ pub use scenario::{Scenario, expand};
 
 use crate::design::Design;
 use crate::design::goals::{Animals, Budget, Hypothesis, Targets};
-use crate::fit::correction::RateCorrection;
 use crate::model::Observer;
 use crate::model::ideal::Payoffs;
+use crate::vocab::RateCorrection;
 use serde::Serialize;
 use std::path::{Path, PathBuf};
 

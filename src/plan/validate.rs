@@ -7,9 +7,9 @@ use super::{CriterionRule, Plan, PlanError, Study};
 use crate::design::{
     BaseRate, Condition, Design, RatingScale, RecordKind, Response, SharedParameter, split_trials,
 };
-use crate::fit::correction::RateCorrection;
 use crate::model::ideal::{IdealObserver, Payoffs};
 use crate::model::{LapseSpec, Observer, normal};
+use crate::vocab::RateCorrection;
 use std::path::Path;
 use toml::Spanned;
 

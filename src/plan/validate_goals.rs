@@ -6,9 +6,9 @@ use super::raw::{RawAnimals, RawBudget, RawHypothesis, RawPlan, RawTargets};
 use super::validate::{Ctx, open_unit};
 use crate::design::goals::{Animals, Budget, Hypothesis, Targets, TestKind};
 use crate::design::{Design, Response, SharedParameter};
-use crate::engine::Quantity;
-use crate::infer::Sided;
 use crate::model::ideal::Payoffs;
+use crate::vocab::Quantity;
+use crate::vocab::Sided;
 
 /// The validated goals of a plan.
 pub(super) struct Goals {

@@ -2,15 +2,16 @@
 //! half-widths and the d′–c correlation at any trial count, without simulating. The search
 //! uses it to bracket the answer before Monte Carlo confirms it.
 
-use super::contrast::Contrast;
 use crate::cells::information::{UnitInformation, precision};
 use crate::cells::observation_model::ObservationModel;
 use crate::design::Design;
 use crate::design::goals::Hypothesis;
 use crate::design::model::condition_specs;
-use crate::engine::{Quantity, z_critical};
+use crate::engine::Contrast;
 use crate::infer::wald_power;
+use crate::infer::z_critical;
 use crate::plan::Plan;
+use crate::vocab::Quantity;
 
 /// Asymptotic values of every target at one trial count; `None` when not identified.
 #[derive(Debug, Clone, PartialEq)]

@@ -7,13 +7,13 @@
 
 pub mod asymptotic;
 pub mod contrast;
-pub mod search;
 
-pub use contrast::{Contrast, contrast, ideal_criterion};
+pub use contrast::{contrast, ideal_criterion};
 
 use crate::cells::observation_model::ObservationModel;
 use crate::design::Design;
 use crate::design::goals::TestKind;
+use crate::engine::Contrast;
 use crate::plan::Plan;
 
 /// The contrasts of every plan hypothesis that this design can test.

@@ -8,8 +8,9 @@
 use super::format::figure;
 use super::style::{new_table, right_align};
 use crate::design::Response;
-use crate::engine::{Figure, Quantity, ScenarioSummary};
+use crate::engine::{Figure, ScenarioSummary};
 use crate::plan::Plan;
+use crate::vocab::Quantity;
 use serde::Serialize;
 use std::fmt::Write;
 

@@ -6,11 +6,14 @@ use super::format::number;
 use super::style::{new_table, right_align};
 use crate::analytic::information::ScenarioInformation;
 use crate::analytic::scan::DesignScan;
-use crate::analytic::verdict::{
-    RANK_TOLERANCE, Verdict, WEAK_CONDITION_NUMBER, WEAK_CORRELATION, condition_text, join_words,
-    plain_verdict,
-};
-use crate::engine::z_critical;
+
+/// The verdict sentence of one grid point.
+fn plain_verdict(info: &ScenarioInformation) -> String {
+    verdict_sentence(&info.verdict, info.corr_d_prime_criterion)
+}
+use super::identification_text::{condition_text, join_words, range_sentence, verdict_sentence};
+use crate::cells::verdict::{RANK_TOLERANCE, Verdict, WEAK_CONDITION_NUMBER, WEAK_CORRELATION};
+use crate::infer::z_critical;
 use crate::plan::Plan;
 use serde::Serialize;
 use std::fmt::Write;
@@ -114,7 +117,7 @@ pub fn reading(plan: &Plan, scan: &DesignScan) -> String {
             s.push_str(&format!(" at {} trials", last.trials));
         }
         if let Some(p) = &last.profile {
-            let ranges: Vec<String> = p.iter().map(|r| r.describe()).collect();
+            let ranges: Vec<String> = p.iter().map(range_sentence).collect();
             s.push_str(&format!(
                 ". At {} trials the counts expected under the hypothesis are consistent ({pct:.0}% profile likelihood) with {}",
                 last.trials,
@@ -144,7 +147,7 @@ pub fn reading(plan: &Plan, scan: &DesignScan) -> String {
     }];
     let z = z_critical(level);
     let c_ok = |r: &ScenarioInformation| {
-        r.se(crate::engine::Quantity::Criterion)
+        r.se(crate::vocab::Quantity::Criterion)
             .is_some_and(|se| z * se < TARGET_C_HALF_WIDTH)
     };
     let r_ok = |r: &ScenarioInformation| {
@@ -304,7 +307,7 @@ pub fn render_json(plan: &Plan, scans: &[DesignScan]) -> serde_json::Result<Vec<
 mod tests {
     use super::*;
     use crate::analytic::information::AsymptoticSe;
-    use crate::engine::Quantity;
+    use crate::vocab::Quantity;
 
     fn row(trials: u32, se_c: f64, r: f64, verdict: Verdict) -> ScenarioInformation {
         let q = |quantity, se| AsymptoticSe {

@@ -9,8 +9,8 @@ use crate::engine::Share;
 use crate::groups::effort::Allocation;
 use crate::groups::summary::TestSummary;
 use crate::groups::{DesignGroups, EffortSplit, GridCell, GroupReport, GroupTest};
-use crate::infer::Sided;
 use crate::plan::Plan;
+use crate::vocab::Sided;
 use std::fmt::Write;
 
 /// The caution specific to groups, repeated under every group report.

@@ -13,7 +13,7 @@ struct Document<'a> {
     plan: &'a Plan,
     results: &'a [ScenarioSummary],
     comparisons: Vec<super::comparison::Comparison>,
-    searches: &'a [crate::power::search::SearchResult],
+    searches: &'a [crate::search::SearchResult],
     #[serde(skip_serializing_if = "Option::is_none")]
     groups: Option<&'a crate::groups::GroupReport>,
     caution: &'static str,
@@ -23,7 +23,7 @@ struct Document<'a> {
 pub fn render(
     plan: &Plan,
     summaries: &[ScenarioSummary],
-    searches: &[crate::power::search::SearchResult],
+    searches: &[crate::search::SearchResult],
     groups: Option<&crate::groups::GroupReport>,
 ) -> serde_json::Result<Vec<u8>> {
     let doc = Document {

@@ -10,6 +10,7 @@ pub mod format;
 pub mod groups_text;
 pub mod ideal_scan_text;
 pub mod ideal_text;
+pub mod identification_text;
 pub mod json_out;
 pub mod output_file;
 pub mod reading;

@@ -1,7 +1,10 @@
 //! One line per design saying what its numbers mean for the person planning.
 
+use super::identification_text::identification_note;
+use crate::cells::verdict::Verdict;
 use crate::design::Design;
-use crate::engine::{Quantity, ScenarioSummary};
+use crate::engine::ScenarioSummary;
+use crate::vocab::Quantity;
 
 /// |r(d̂′, ĉ)| below this is read as "told apart".
 pub const SEPARATED_R: f64 = 0.3;
@@ -13,9 +16,10 @@ pub fn reading(design: &Design, rows: &[&ScenarioSummary], level: f64) -> String
     let (Some(first), Some(last)) = (rows.first(), rows.last()) else {
         return format!("{}: nothing to report.", design.name);
     };
-    if let Some(verdict) = &last.identifiability
-        && verdict.starts_with("not identified")
+    if let Some(id) = &last.identification
+        && matches!(id.verdict, Verdict::NotIdentified { .. })
     {
+        let verdict = identification_note(id);
         return format!(
             "{}: {verdict} (at {} trials). More trials cannot fix this: the record itself must change (know or census the base rate, or record more).",
             design.name, last.scenario.trials
@@ -64,11 +68,14 @@ pub fn reading(design: &Design, rows: &[&ScenarioSummary], level: f64) -> String
             100.0 * s.datasets.extreme.value
         ));
     }
-    if let Some(s) = rows.iter().find(|s| s.identifiability.is_some()) {
+    if let Some((s, id)) = rows
+        .iter()
+        .find_map(|s| s.identification.as_ref().map(|id| (s, id)))
+    {
         parts.push(format!(
             "warning at {} trials: {}",
             s.scenario.trials,
-            s.identifiability.as_deref().unwrap_or_default()
+            identification_note(id)
         ));
     }
     if let Some(s) = rows.iter().find(|s| undercovers(s, level)) {

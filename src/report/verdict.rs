@@ -2,7 +2,7 @@
 //! one line per pair of designs saying what the extra measure buys.
 
 use super::style::{new_table, right_align};
-use crate::power::search::{SearchOutcome, SearchResult, Target, TargetValue};
+use crate::search::{SearchOutcome, SearchResult, Target, TargetValue};
 use std::fmt::Write;
 
 fn value_text(v: &TargetValue) -> String {

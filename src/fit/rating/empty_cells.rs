@@ -7,7 +7,8 @@
 //! degenerate before fitting, and the report counts them.
 
 use super::table::{RatingTable, Row};
-use crate::fit::correction::{RateCorrection, RowTooSmall};
+use crate::fit::correction::RowTooSmall;
+use crate::vocab::RateCorrection;
 
 /// Why a correction could not be applied to a table.
 #[derive(Debug, Clone, Copy, PartialEq, thiserror::Error)]

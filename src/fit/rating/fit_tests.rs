@@ -2,8 +2,8 @@
 //! bad starts, degenerate tables and the iteration limit.
 
 use super::*;
-use crate::fit::RateCorrection;
 use crate::model::normal;
+use crate::vocab::RateCorrection;
 
 fn yes_no(hits: f64, n_present: f64, false_alarms: f64, n_absent: f64) -> RatingTable {
     RatingTable::new(

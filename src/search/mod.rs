@@ -14,12 +14,15 @@
 //! The Monte Carlo decision uses the likelihood-ratio test (the default: its rejection rate
 //! stays closer to α at small counts than the Wald test's; both are reported).
 
-use super::asymptotic::{self, AsymptoticPoint};
-use super::contrast::{Contrast, contrast};
 use crate::design::goals::{Hypothesis, TestKind};
 use crate::design::{Design, RecordKind, split_trials};
-use crate::engine::{Quantity, RunError, RunOptions, ScenarioSummary, Share, run_scenario};
+use crate::engine::Contrast;
+use crate::engine::{ScenarioSummary, Share};
+use crate::evaluate::{RunError, RunOptions, run_scenario};
 use crate::plan::{Plan, Scenario};
+use crate::power::asymptotic::{self, AsymptoticPoint};
+use crate::power::contrast;
+use crate::vocab::Quantity;
 use serde::Serialize;
 
 /// Random-stream key base for search evaluations (distinct from `vigil run` scenario ids).

@@ -1,6 +1,7 @@
 //! The identifiability verdict in a form reports can print and serialise: parameter names a
-//! reader knows (no condition suffix in single-condition designs), null directions as text,
-//! profile-likelihood ranges, and one plain sentence.
+//! reader knows (no condition suffix in single-condition designs), null directions as
+//! formulas, and profile-likelihood ranges. Typed data only: the sentences are written in
+//! `report::identification_text`.
 //!
 //! The verdict itself comes from [`crate::cells::identifiability::assess`]: rank at relative
 //! eigenvalue tolerance [`RANK_TOLERANCE`] of the unit-diagonal information; weak when its
@@ -9,14 +10,13 @@
 
 use serde::Serialize;
 
-use crate::analytic::information::ScenarioInformation;
 use crate::cells::identifiability::{self, NullDirection};
 use crate::cells::parameter_map::{ParameterKind, ParameterMap};
 use crate::cells::profile::Bound;
 
 pub use crate::cells::identifiability::{RANK_TOLERANCE, WEAK_CONDITION_NUMBER, WEAK_CORRELATION};
 
-/// Serialisable copy of [`identifiability::Verdict`], with null directions as text.
+/// Serialisable copy of [`identifiability::EigenVerdict`], with null directions as text.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 #[serde(tag = "kind", rename_all = "kebab-case")]
 pub enum Verdict {
@@ -91,20 +91,20 @@ impl ParameterNames {
 
 /// Converts the eigen-analysis verdict, naming parameters with `names`.
 pub fn from_assessment(
-    v: &identifiability::Verdict,
+    v: &identifiability::EigenVerdict,
     map: &ParameterMap,
     names: &ParameterNames,
 ) -> Verdict {
     match v {
-        identifiability::Verdict::Identified => Verdict::Identified,
-        identifiability::Verdict::Weak {
+        identifiability::EigenVerdict::Identified => Verdict::Identified,
+        identifiability::EigenVerdict::Weak {
             condition_number,
             max_abs_corr,
         } => Verdict::Weak {
             condition_number: *condition_number,
             max_abs_corr: *max_abs_corr,
         },
-        identifiability::Verdict::NotIdentified {
+        identifiability::EigenVerdict::NotIdentified {
             deficiency,
             null_directions,
         } => {
@@ -190,118 +190,13 @@ pub struct ProfileRange {
     pub inner_failures: usize,
 }
 
-impl ProfileRange {
-    /// "d′ from 0.82 to 2.41", "d′ up to 1.79, unbounded below (no limit down to −8.40, the
-    /// edge of the search window)", "c unbounded both ways (no limit within −10.30 … 9.70, the
-    /// search window)".
-    pub fn describe(&self) -> String {
-        let p = &self.parameter;
-        match (self.lower, self.upper) {
-            (RangeEnd::At { value: lo }, RangeEnd::At { value: hi }) => {
-                format!("{p} from {lo:.2} to {hi:.2}")
-            }
-            (RangeEnd::BeyondWindow { edge }, RangeEnd::At { value: hi }) => format!(
-                "{p} up to {hi:.2}, unbounded below (no limit down to {edge:.2}, the edge of the search window)"
-            ),
-            (RangeEnd::At { value: lo }, RangeEnd::BeyondWindow { edge }) => format!(
-                "{p} from {lo:.2}, unbounded above (no limit up to {edge:.2}, the edge of the search window)"
-            ),
-            (RangeEnd::BeyondWindow { edge: lo }, RangeEnd::BeyondWindow { edge: hi }) => format!(
-                "{p} unbounded both ways (no limit within {lo:.2} … {hi:.2}, the search window)"
-            ),
-        }
-    }
-}
-
-/// One sentence in plain words, e.g. "identified", "weakly identified: condition number
-/// 3.2e6, |r(d′, c)| = 0.97", or "not identified: d′, c and the base rate cannot be told
-/// apart — moving them together along logit π − 0.35·c + 0.17·d′ leaves every expected count
-/// unchanged".
-pub fn plain_verdict(info: &ScenarioInformation) -> String {
-    match &info.verdict {
-        Verdict::Identified => "identified".to_string(),
-        Verdict::Weak {
-            condition_number,
-            max_abs_corr,
-        } => {
-            let mut s = format!(
-                "weakly identified: condition number {}",
-                condition_text(*condition_number)
-            );
-            let r = info.corr_d_prime_criterion.map(f64::abs);
-            if let Some(r) = r {
-                s.push_str(&format!(", |r(d′, c)| = {r:.2}"));
-            }
-            if r.is_none_or(|r| (r - max_abs_corr).abs() > 0.005) {
-                s.push_str(&format!(
-                    ", largest |correlation| between estimates {max_abs_corr:.2}"
-                ));
-            }
-            s
-        }
-        Verdict::NotIdentified {
-            null_directions,
-            confounded,
-            ..
-        } => format!(
-            "not identified: {} cannot be told apart — moving them together along {} leaves \
-             every expected count unchanged",
-            join_words(confounded),
-            null_directions.join("; or along ")
-        ),
-    }
-}
-
-/// A condition number for text: 1 decimal below 10⁴, else `3.2e6`; `∞` when singular.
-pub fn condition_text(k: f64) -> String {
-    if !k.is_finite() {
-        "∞".to_string()
-    } else if k < 1e4 {
-        format!("{k:.1}")
-    } else {
-        format!("{k:.1e}")
-    }
-}
-
-/// "a", "a and b", "a, b and c".
-pub fn join_words(words: &[String]) -> String {
-    match words {
-        [] => String::new(),
-        [one] => one.clone(),
-        [init @ .., last] => format!("{} and {last}", init.join(", ")),
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn words_and_numbers() {
-        let w = |v: &[&str]| v.iter().map(|s| s.to_string()).collect::<Vec<_>>();
-        assert_eq!(
-            join_words(&w(&["d′", "c", "the base rate"])),
-            "d′, c and the base rate"
-        );
-        assert_eq!(join_words(&w(&["d′"])), "d′");
-        assert_eq!(condition_text(3.2e6), "3.2e6");
-        assert_eq!(condition_text(12.34), "12.3");
-        assert_eq!(condition_text(f64::INFINITY), "∞");
-    }
-
-    #[test]
-    fn unbounded_ends_say_so() {
-        let r = ProfileRange {
-            parameter: "c".into(),
-            truth: -0.3,
-            level: 0.95,
-            lower: RangeEnd::At { value: -1.0 },
-            upper: RangeEnd::BeyondWindow { edge: 9.7 },
-            inner_failures: 0,
-        };
-        assert_eq!(
-            r.describe(),
-            "c from -1.00, unbounded above (no limit up to 9.70, the edge of the search window)"
-        );
-    }
+/// What the expected information says about a scenario that is not plainly identified,
+/// carried beside its simulated figures.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Identification {
+    pub verdict: Verdict,
+    /// r(d̂′, ĉ) of the first condition from the expected information, when defined.
+    pub corr_d_prime_criterion: Option<f64>,
+    /// Profile-likelihood ranges of d′ and c (filled when not identified).
+    pub ranges: Vec<ProfileRange>,
 }

@@ -1,0 +1,240 @@
+//! Evaluating scenarios: the one place that decides how a scenario is run (exact enumeration
+//! or the engine's Monte Carlo, and which kernel), then puts the expected-information SE and
+//! the identifiability verdict beside every simulated figure.
+//!
+//! It sits above `engine`, `analytic` and `power` and below the search and the commands, so
+//! the engine never calls back up.
+
+use crate::analytic::exact;
+use crate::cells::verdict::{Identification, Verdict};
+use crate::design::{Design, Response};
+use crate::engine::cells_kernel::CellsKernel;
+use crate::engine::parallel::run_replicates;
+use crate::engine::rating_kernel::RatingKernel;
+use crate::engine::summary::{self, Method, ScenarioSummary};
+use crate::engine::tally;
+use crate::engine::yesno_kernel::YesNoKernel;
+use crate::infer::z_critical;
+use crate::plan::{Plan, Scenario};
+use thiserror::Error;
+
+/// How to run a plan.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub struct RunOptions {
+    /// Enumerate yes/no outcomes exactly instead of simulating.
+    pub exact: bool,
+}
+
+/// Why a plan could not be run as asked.
+#[derive(Debug, Error, PartialEq)]
+pub enum RunError {
+    #[error(
+        "design \"{design}\" at {trials} trials has {outcomes} outcomes, more than the {max} that --exact enumerates; drop --exact to simulate it"
+    )]
+    TooLargeToEnumerate {
+        design: String,
+        trials: u32,
+        outcomes: u64,
+        max: u64,
+    },
+    #[error(
+        "design \"{design}\" is not a single-condition yes/no design with a full record; --exact covers those only"
+    )]
+    ExactNeedsYesNo { design: String },
+    #[error(
+        "--exact enumerates estimates only; hypothesis tests need simulation: drop --exact or the [[hypothesis]] tables"
+    )]
+    ExactWithHypotheses,
+    #[error("--experiments must be at least 1")]
+    NoExperiments,
+    #[error("design \"{design}\": {message}")]
+    Model { design: String, message: String },
+}
+
+/// Number of replicates the whole plan will run (for progress bars).
+pub fn total_replicates(plan: &Plan, options: RunOptions) -> u64 {
+    if options.exact {
+        0
+    } else {
+        plan.scenarios().len() as u64 * plan.study.experiments
+    }
+}
+
+/// Checks that the plan can be run with these options before any work starts.
+pub fn preflight(plan: &Plan, options: RunOptions) -> Result<(), RunError> {
+    if !options.exact {
+        return Ok(());
+    }
+    if !plan.hypotheses.is_empty() {
+        return Err(RunError::ExactWithHypotheses);
+    }
+    for s in plan.scenarios() {
+        let design = &plan.designs[s.design];
+        if !matches!(design.response, Response::YesNo) || !design.is_single_table() {
+            return Err(RunError::ExactNeedsYesNo {
+                design: design.name.clone(),
+            });
+        }
+        if !exact::can_enumerate(s.split.present, s.split.absent) {
+            return Err(RunError::TooLargeToEnumerate {
+                design: design.name.clone(),
+                trials: s.trials,
+                outcomes: (u64::from(s.split.present) + 1) * (u64::from(s.split.absent) + 1),
+                max: exact::MAX_OUTCOMES,
+            });
+        }
+    }
+    Ok(())
+}
+
+/// Runs every scenario of the plan and summarises each.
+pub fn run_plan(
+    plan: &Plan,
+    options: RunOptions,
+    progress: &(dyn Fn(u64) + Sync),
+) -> Result<Vec<ScenarioSummary>, RunError> {
+    preflight(plan, options)?;
+    plan.scenarios()
+        .iter()
+        .map(|s| run_scenario(plan, s, options, progress))
+        .collect()
+}
+
+/// Whether any plan hypothesis can be tested on this design (it then runs through the
+/// general path, which fits the restricted models the likelihood-ratio tests need).
+pub fn tests_apply(plan: &Plan, design: &Design) -> bool {
+    if plan.hypotheses.is_empty() {
+        return false;
+    }
+    let trials = design.trials[0];
+    crate::design::model::observation_model(design, &plan.observer, trials)
+        .map(|m| !crate::power::contrasts_for(plan, design, &m).is_empty())
+        .unwrap_or(false)
+}
+
+/// Runs one scenario, with the expected-information SE beside every simulated figure.
+pub fn run_scenario(
+    plan: &Plan,
+    scenario: &Scenario,
+    options: RunOptions,
+    progress: &(dyn Fn(u64) + Sync),
+) -> Result<ScenarioSummary, RunError> {
+    let mut summary = simulate_scenario(plan, scenario, options, progress)?;
+    let design = &plan.designs[scenario.design];
+    let Ok(information) = crate::analytic::information::DesignInformation::new(plan, design) else {
+        return Ok(summary);
+    };
+    if let Ok(info) = information.at(scenario.trials, false) {
+        for q in &mut summary.quantities {
+            let label = q.label();
+            q.asymptotic_se = info
+                .quantities
+                .iter()
+                .find(|a| a.label() == label)
+                .and_then(|a| a.se);
+        }
+        summary.identification = match info.verdict {
+            Verdict::Identified => None,
+            Verdict::Weak { .. } => Some(Identification {
+                verdict: info.verdict.clone(),
+                corr_d_prime_criterion: info.corr_d_prime_criterion,
+                ranges: Vec::new(),
+            }),
+            // Not identified: profile-likelihood ranges instead of meaningless SEs.
+            Verdict::NotIdentified { .. } => {
+                information
+                    .at(scenario.trials, true)
+                    .ok()
+                    .map(|full| Identification {
+                        verdict: full.verdict.clone(),
+                        corr_d_prime_criterion: full.corr_d_prime_criterion,
+                        ranges: full.profile.iter().flatten().cloned().collect(),
+                    })
+            }
+        };
+    }
+    Ok(summary)
+}
+
+/// Simulates (or enumerates) one scenario.
+fn simulate_scenario(
+    plan: &Plan,
+    scenario: &Scenario,
+    options: RunOptions,
+    progress: &(dyn Fn(u64) + Sync),
+) -> Result<ScenarioSummary, RunError> {
+    let design = &plan.designs[scenario.design];
+    let z_crit = z_critical(plan.study.confidence);
+    let study = &plan.study;
+    let model_error = |e: &dyn std::fmt::Display| RunError::Model {
+        design: design.name.clone(),
+        message: e.to_string(),
+    };
+    let simulate = |tally: tally::EstimateTally| {
+        summary::summarise(*scenario, &design.name, &tally, Method::MonteCarlo)
+    };
+    if !design.is_single_table() || tests_apply(plan, design) {
+        let kernel = CellsKernel::with_tests(
+            design,
+            &plan.observer,
+            scenario.trials,
+            study.rate_correction,
+            z_crit,
+            &|model| crate::power::contrasts_for(plan, design, model),
+            study.alpha,
+        )
+        .map_err(|e| model_error(&e))?;
+        return Ok(simulate(run_replicates(
+            &kernel,
+            study.seed,
+            scenario.id,
+            study.experiments,
+            progress,
+        )));
+    }
+    Ok(match &design.response {
+        Response::YesNo => {
+            let kernel = YesNoKernel::new(
+                &design.conditions[0].observer(&plan.observer),
+                scenario.split.present,
+                scenario.split.absent,
+                study.rate_correction,
+                z_crit,
+            );
+            if options.exact {
+                summary::summarise(
+                    *scenario,
+                    &design.name,
+                    &exact::enumerate(&kernel),
+                    Method::Exact,
+                )
+            } else {
+                simulate(run_replicates(
+                    &kernel,
+                    study.seed,
+                    scenario.id,
+                    study.experiments,
+                    progress,
+                ))
+            }
+        }
+        Response::Rating(scale) => {
+            let kernel = RatingKernel::new(
+                scale,
+                &design.conditions[0],
+                &plan.observer,
+                scenario.split,
+                study.rate_correction,
+                z_crit,
+            )
+            .map_err(|e| model_error(&e))?;
+            simulate(run_replicates(
+                &kernel,
+                study.seed,
+                scenario.id,
+                study.experiments,
+                progress,
+            ))
+        }
+    })
+}

@@ -1,0 +1,111 @@
+//! The vocabulary every layer shares, at the bottom of the import graph: what is estimated
+//! ([`Quantity`]), which way a test looks ([`Sided`]) and the rule for rates of 0 or 1
+//! ([`RateCorrection`]). Types only (and their names); behaviour lives with the layer that
+//! owns it (`infer` computes p-values, `fit` applies corrections).
+
+use serde::{Deserialize, Serialize};
+
+/// A quantity the report summarises.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Quantity {
+    DPrime,
+    Criterion,
+    Sigma,
+    Slope,
+    DA,
+    Az,
+    BaseRate,
+}
+
+impl Quantity {
+    /// Label for tables.
+    pub fn label(self) -> &'static str {
+        match self {
+            Self::DPrime => "d′",
+            Self::Criterion => "c",
+            Self::Sigma => "σ",
+            Self::Slope => "zROC slope",
+            Self::DA => "d_a",
+            Self::Az => "A_z",
+            Self::BaseRate => "π",
+        }
+    }
+
+    /// Label of this quantity in a condition, e.g. `c[low]`; the bare label when the
+    /// quantity belongs to no single condition. The one rule every table uses.
+    pub fn label_in(self, condition: Option<&str>) -> String {
+        match condition {
+            Some(c) => format!("{}[{c}]", self.label()),
+            None => self.label().to_string(),
+        }
+    }
+
+    /// Machine name in a condition, e.g. `criterion[low]`.
+    pub fn key_in(self, condition: Option<&str>) -> String {
+        match condition {
+            Some(c) => format!("{}[{c}]", self.key()),
+            None => self.key().to_string(),
+        }
+    }
+
+    /// Machine name for CSV and JSON.
+    pub fn key(self) -> &'static str {
+        match self {
+            Self::DPrime => "d_prime",
+            Self::Criterion => "criterion",
+            Self::Sigma => "sigma",
+            Self::Slope => "zroc_slope",
+            Self::DA => "d_a",
+            Self::Az => "a_z",
+            Self::BaseRate => "base_rate",
+        }
+    }
+}
+
+/// Direction of the alternative hypothesis for a parameter θ against its null value θ₀.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+pub enum Sided {
+    /// H₁: θ ≠ θ₀.
+    TwoSided,
+    /// H₁: θ > θ₀.
+    Greater,
+    /// H₁: θ < θ₀.
+    Less,
+}
+
+/// A named rule for rates of 0 or 1.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum RateCorrection {
+    /// Add ½ to every cell, extreme or not: rate = (x + ½)/(n + 1) (Hautus 1995).
+    LogLinear,
+    /// Only extreme rates move: 0 → 1/(2n), 1 → 1 − 1/(2n) (Macmillan & Kaplan 1985).
+    HalfN,
+    /// No correction: a dataset with a rate of 0 or 1 is degenerate and left out.
+    None,
+}
+
+impl RateCorrection {
+    /// Names accepted in plan files, in the order shown to users.
+    pub const NAMES: [&'static str; 3] = ["log-linear", "half-n", "none"];
+
+    /// Parses a plan value; `None` when the name is not one of [`Self::NAMES`].
+    pub fn from_name(name: &str) -> Option<Self> {
+        match name {
+            "log-linear" => Some(Self::LogLinear),
+            "half-n" => Some(Self::HalfN),
+            "none" => Some(Self::None),
+            _ => Option::None,
+        }
+    }
+
+    /// The plan-file name of this rule.
+    pub fn name(self) -> &'static str {
+        match self {
+            Self::LogLinear => "log-linear",
+            Self::HalfN => "half-n",
+            Self::None => "none",
+        }
+    }
+}
