@@ -6,7 +6,7 @@ use criterion::{Criterion, criterion_group, criterion_main};
 use std::hint::black_box;
 use std::path::Path;
 use vigil::analytic::scan::{ScanOptions, scan_plan};
-use vigil::app_explore::{ExploreRequest, explore};
+use vigil::commands::explore::{ExploreRequest, explore};
 use vigil::plan::Plan;
 
 fn sentinel(c: &mut Criterion) {

@@ -8,10 +8,8 @@
 //! or [`analytic`] → summaries → [`report`].
 
 pub mod analytic;
-pub mod app;
-pub mod app_explore;
-pub mod app_ideal;
 pub mod cells;
+pub mod commands;
 pub mod design;
 pub mod engine;
 pub mod evaluate;

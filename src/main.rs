@@ -3,7 +3,7 @@
 use clap::{Parser, Subcommand};
 use std::path::PathBuf;
 use std::process::ExitCode;
-use vigil::app::{self, AppError, RunRequest};
+use vigil::commands::{self as app, AppError, RunRequest};
 
 /// Plan signal-detection experiments before fieldwork.
 #[derive(Parser)]
@@ -69,14 +69,14 @@ enum Command {
         presence: f64,
         /// Value of a hit, cost of a miss, value of a correct rejection, cost of a false alarm.
         #[arg(long, value_name = "V_H,C_M,V_CR,C_FA", allow_hyphen_values = true,
-              value_parser = vigil::app_ideal::parse_payoffs)]
+              value_parser = vigil::commands::ideal::parse_payoffs)]
         payoffs: [f64; 4],
         /// Also show the criterion f·c_opt, a fraction f in [0, 1] of the way from 0 to c_opt.
         #[arg(long, value_name = "F", allow_negative_numbers = true)]
         fraction: Option<f64>,
         /// Scan the payoff ratio (V_CR + C_FA)/(V_H + C_M), log-spaced, e.g. 0.1:10:9.
         #[arg(long, value_name = "LOW:HIGH:POINTS", allow_hyphen_values = true,
-              value_parser = vigil::app_ideal::parse_scan)]
+              value_parser = vigil::commands::ideal::parse_scan)]
         scan: Option<(f64, f64, usize)>,
         /// Also write the figures as JSON.
         #[arg(long, value_name = "FILE")]
@@ -94,7 +94,7 @@ fn main() -> ExitCode {
             fraction,
             scan,
             json,
-        } => vigil::app_ideal::ideal(&vigil::app_ideal::IdealRequest {
+        } => vigil::commands::ideal::ideal(&vigil::commands::ideal::IdealRequest {
             d_prime,
             presence,
             payoffs,
@@ -108,7 +108,7 @@ fn main() -> ExitCode {
             to,
             points,
             json,
-        } => vigil::app_explore::explore(&vigil::app_explore::ExploreRequest {
+        } => vigil::commands::explore::explore(&vigil::commands::explore::ExploreRequest {
             plan,
             from,
             to,

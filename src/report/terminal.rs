@@ -11,8 +11,33 @@ use crate::plan::Plan;
 use comfy_table::Table;
 use std::fmt::Write;
 
-/// The whole report as text.
+/// The whole `vigil run` report, composed section by section: the per-design blocks and the
+/// side-by-side comparison, then the sample-size verdict and the group section when there
+/// are any, then the closing caution.
+pub fn render_run(
+    plan: &Plan,
+    summaries: &[ScenarioSummary],
+    searches: &[crate::search::SearchResult],
+    groups: Option<&crate::groups::GroupReport>,
+) -> String {
+    let mut out = render_designs(plan, summaries);
+    out.push_str(&super::verdict::render(searches, plan.study.max_trials));
+    if let Some(g) = groups {
+        out.push_str(&super::groups_text::render_section(plan, g));
+    }
+    let _ = writeln!(out, "Caution: {CAUTION}");
+    out
+}
+
+/// The report of the simulated scenarios alone, with its closing caution.
 pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> String {
+    let mut out = render_designs(plan, summaries);
+    let _ = writeln!(out, "Caution: {CAUTION}");
+    out
+}
+
+/// Header, one block per design and the side-by-side comparison.
+fn render_designs(plan: &Plan, summaries: &[ScenarioSummary]) -> String {
     let mut out = String::new();
     header(&mut out, plan, summaries);
     for (d, design) in plan.designs.iter().enumerate() {
@@ -25,7 +50,6 @@ pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> String {
     out.push_str(&super::comparison::render(&super::comparison::comparisons(
         plan, summaries,
     )));
-    let _ = writeln!(out, "Caution: {CAUTION}");
     out
 }
 

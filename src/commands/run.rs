@@ -1,98 +1,12 @@
-//! What each command does, as library functions the binary calls.
-//!
-//! Exit codes: 0 success; 2 bad input (plan, options, output path); 1 anything else
-//! (an I/O failure while writing results).
+//! `vigil run`: load the plan, claim the output files, run every scenario, the search and the
+//! groups, then write the outputs whole and compose the terminal report.
 
 use crate::engine::ScenarioSummary;
 use crate::evaluate::{self, RunError, RunOptions};
-use crate::plan::{Plan, PlanError};
+use super::AppError;
+use crate::plan::Plan;
 use crate::report::{self, PendingFile};
-use std::fmt::Write;
-use std::path::{Path, PathBuf};
-use thiserror::Error;
-
-/// Any failure of a command, with its exit code.
-#[derive(Debug, Error)]
-pub enum AppError {
-    #[error("{0}")]
-    Plan(#[from] PlanError),
-    #[error("{0}")]
-    Run(#[from] RunError),
-    #[error(
-        "{path}: cannot write output: {source}\n  allowed: a file path in an existing, writable folder"
-    )]
-    Output {
-        path: PathBuf,
-        source: std::io::Error,
-    },
-    /// A bad command-line value, already worded with the option and what is allowed.
-    #[error("{0}")]
-    Input(String),
-    #[error("{0}")]
-    Groups(#[from] crate::groups::GroupError),
-    #[error("{0}")]
-    Internal(String),
-}
-
-impl AppError {
-    /// The documented exit code of this failure.
-    pub fn exit_code(&self) -> i32 {
-        match self {
-            Self::Plan(_)
-            | Self::Run(_)
-            | Self::Output { .. }
-            | Self::Input(_)
-            | Self::Groups(_) => 2,
-            Self::Internal(_) => 1,
-        }
-    }
-}
-
-/// `vigil check`: the expanded scenarios, without simulating.
-pub fn check(path: &Path) -> Result<String, AppError> {
-    let plan = Plan::load(path)?;
-    let mut out = String::new();
-    let _ = writeln!(
-        out,
-        "{}: plan is valid — {}",
-        path.display(),
-        plan.study.title
-    );
-    let o = &plan.observer;
-    let _ = writeln!(
-        out,
-        "observer: d′ = {}, c = {}, σ = {}; {} experiments per scenario, seed {}, {:.0}% intervals, {} correction",
-        o.d_prime,
-        o.criterion,
-        o.sigma,
-        plan.study.experiments,
-        plan.study.seed,
-        100.0 * plan.study.confidence,
-        plan.study.rate_correction.name()
-    );
-    let mut t = report::style::new_table(vec![
-        "scenario", "design", "record", "presence", "trials", "present", "absent",
-    ]);
-    for s in plan.scenarios() {
-        let d = &plan.designs[s.design];
-        t.add_row(vec![
-            (s.id + 1).to_string(),
-            d.name.clone(),
-            d.record_label(),
-            format!("{}", d.presence),
-            s.trials.to_string(),
-            s.split.present.to_string(),
-            s.split.absent.to_string(),
-        ]);
-    }
-    report::style::right_align(&mut t, 4..7);
-    let _ = writeln!(out, "{t}");
-    let _ = writeln!(
-        out,
-        "present trials = presence × trials rounded to the nearest whole number (halves round up); absent = the rest."
-    );
-    Ok(out)
-}
+use std::path::PathBuf;
 
 /// Options of `vigil run`.
 #[derive(Debug, Clone, Default)]
@@ -180,17 +94,7 @@ pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<Stri
         run.csv,
         run.json,
     )?;
-    let mut text = report::terminal::render(plan, &summaries);
-    let verdict = report::verdict::render(&searches, plan.study.max_trials);
-    if !verdict.is_empty() {
-        // The verdict goes before the closing caution.
-        let at = text.rfind("Caution:").unwrap_or(text.len());
-        text.insert_str(at, &verdict);
-    }
-    if let Some(g) = &groups {
-        let at = text.rfind("Caution:").unwrap_or(text.len());
-        text.insert_str(at, &report::groups_text::render_section(plan, g));
-    }
+    let text = report::terminal::render_run(plan, &summaries, &searches, groups.as_ref());
     Ok(text)
 }
 

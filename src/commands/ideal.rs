@@ -6,10 +6,10 @@
 //! (naming the option in every error), claims the JSON file, calls the model and hands the
 //! figures to [`crate::report::ideal_text`].
 //!
-//! Exit codes as for the other commands (see [`crate::app`]): 2 for a bad option value or an
+//! Exit codes as for the other commands (see [`crate::commands`]): 2 for a bad option value or an
 //! output path that cannot be written (both found before any work); 1 otherwise.
 
-use crate::app::AppError;
+use super::AppError;
 use crate::model::ideal::{IdealError, IdealObserver, Payoffs, log_spaced, scan_payoff_ratios};
 use crate::report::ideal_text::{IdealFigures, PartialAdjustment, PayoffScan};
 use crate::report::{self, PendingFile};
