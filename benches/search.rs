@@ -12,7 +12,7 @@ use vigil::search::search_plan;
 fn whole_search(c: &mut Criterion) {
     let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("plans/base-rate-shift.toml");
     let plan = Plan::load(&path).unwrap();
-    assert_eq!(plan.study.experiments, 2000);
+    assert_eq!(plan.study().experiments, 2000);
     let mut group = c.benchmark_group("search");
     group.sample_size(10);
     group.bench_function("plans/base-rate-shift.toml, 3 designs", |b| {

@@ -45,8 +45,6 @@ pub enum RunError {
         "--exact enumerates estimates only; hypothesis tests need simulation: drop --exact or the [[hypothesis]] tables"
     )]
     ExactWithHypotheses,
-    #[error("--experiments must be at least 1")]
-    NoExperiments,
     #[error("design \"{design}\": {message}")]
     Model { design: String, message: String },
 }
@@ -56,7 +54,7 @@ pub fn total_replicates(plan: &Plan, options: RunOptions) -> u64 {
     if options.exact {
         0
     } else {
-        plan.scenarios().len() as u64 * plan.study.experiments
+        plan.scenarios().len() as u64 * plan.study().experiments
     }
 }
 
@@ -65,11 +63,11 @@ pub fn preflight(plan: &Plan, options: RunOptions) -> Result<(), RunError> {
     if !options.exact {
         return Ok(());
     }
-    if !plan.hypotheses.is_empty() {
+    if !plan.hypotheses().is_empty() {
         return Err(RunError::ExactWithHypotheses);
     }
     for s in plan.scenarios() {
-        let design = &plan.designs[s.design];
+        let design = &plan.designs()[s.design];
         if !matches!(design.response, Response::YesNo) || !design.is_single_table() {
             return Err(RunError::ExactNeedsYesNo {
                 design: design.name.clone(),
@@ -103,11 +101,11 @@ pub fn run_plan(
 /// Whether any plan hypothesis can be tested on this design (it then runs through the
 /// general path, which fits the restricted models the likelihood-ratio tests need).
 pub fn tests_apply(plan: &Plan, design: &Design) -> bool {
-    if plan.hypotheses.is_empty() {
+    if plan.hypotheses().is_empty() {
         return false;
     }
     let trials = design.trials[0];
-    crate::design::model::observation_model(design, &plan.observer, trials)
+    crate::design::model::observation_model(design, &plan.observer(), trials)
         .map(|m| !crate::power::contrasts_for(plan, design, &m).is_empty())
         .unwrap_or(false)
 }
@@ -120,7 +118,7 @@ pub fn run_scenario(
     progress: &(dyn Fn(u64) + Sync),
 ) -> Result<ScenarioSummary, RunError> {
     let mut summary = simulate_scenario(plan, scenario, options, progress)?;
-    let design = &plan.designs[scenario.design];
+    let design = &plan.designs()[scenario.design];
     let Ok(information) = crate::analytic::information::DesignInformation::new(plan, design) else {
         return Ok(summary);
     };
@@ -163,9 +161,9 @@ fn simulate_scenario(
     options: RunOptions,
     progress: &(dyn Fn(u64) + Sync),
 ) -> Result<ScenarioSummary, RunError> {
-    let design = &plan.designs[scenario.design];
-    let z_crit = z_critical(plan.study.confidence);
-    let study = &plan.study;
+    let design = &plan.designs()[scenario.design];
+    let z_crit = z_critical(plan.study().confidence);
+    let study = &plan.study();
     let model_error = |e: &dyn std::fmt::Display| RunError::Model {
         design: design.name.clone(),
         message: e.to_string(),
@@ -176,7 +174,7 @@ fn simulate_scenario(
     if !design.is_single_table() || tests_apply(plan, design) {
         let kernel = CellsKernel::with_tests(
             design,
-            &plan.observer,
+            &plan.observer(),
             scenario.trials,
             study.rate_correction,
             z_crit,
@@ -195,7 +193,7 @@ fn simulate_scenario(
     Ok(match &design.response {
         Response::YesNo => {
             let kernel = YesNoKernel::new(
-                &design.conditions[0].observer(&plan.observer),
+                &design.conditions[0].observer(&plan.observer()),
                 scenario.split.present,
                 scenario.split.absent,
                 study.rate_correction,
@@ -222,7 +220,7 @@ fn simulate_scenario(
             let kernel = RatingKernel::new(
                 scale,
                 &design.conditions[0],
-                &plan.observer,
+                &plan.observer(),
                 scenario.split,
                 study.rate_correction,
                 z_crit,

@@ -24,7 +24,7 @@ fn plan(d_prime: f64, criterion: f64, presence: f64, trials: u32, extra: &str) -
 }
 
 fn se(plan: &Plan, trials: u32, q: Quantity) -> f64 {
-    scenario_information(plan, &plan.designs[0], trials)
+    scenario_information(plan, &plan.designs()[0], trials)
         .unwrap()
         .se(q)
         .unwrap()
@@ -42,7 +42,7 @@ fn full_record_matches_gourevitch_galanter() {
     ] {
         let (zh, zf) = (normal::z(h).unwrap(), normal::z(f).unwrap());
         let p = plan(zh - zf, -0.5 * (zh + zf), presence, trials, "");
-        let info = scenario_information(&p, &p.designs[0], trials).unwrap();
+        let info = scenario_information(&p, &p.designs()[0], trials).unwrap();
         assert_eq!(info.verdict, Verdict::Identified);
         let vd = info.se(Quantity::DPrime).unwrap().powi(2);
         let vc = info.se(Quantity::Criterion).unwrap().powi(2);
@@ -88,7 +88,7 @@ fn known_base_rate_matches_golden_error_totals() {
             n,
             extra,
         );
-        let info = scenario_information(&p, &p.designs[0], n).unwrap();
+        let info = scenario_information(&p, &p.designs()[0], n).unwrap();
         assert!(near(
             info.se(Quantity::DPrime).unwrap(),
             num(&case["se_d_prime"])
@@ -107,11 +107,11 @@ fn known_base_rate_matches_golden_error_totals() {
 #[test]
 fn a_scan_reuses_block_information_with_sizes_recomputed_per_count() {
     let p = plan(1.6, -0.3, 0.3, 50, "");
-    let design = &p.designs[0];
+    let design = &p.designs()[0];
     let d = DesignInformation::new(&p, design).unwrap();
     // 15 × 0.3 = 4.5 rounds up, 17 × 0.3 = 5.1 down: the split moves with rounding.
     for n in [15, 17, 50, 333, 1001] {
-        let mut specs = condition_specs(design, &p.observer, n);
+        let mut specs = condition_specs(design, &p.observer(), n);
         specs.iter_mut().for_each(|s| s.lapse = None);
         let model = ObservationModel::new(specs).unwrap();
         let theta = model.hypothesised_theta();
@@ -131,7 +131,7 @@ fn a_scan_reuses_block_information_with_sizes_recomputed_per_count() {
 #[test]
 fn a_count_without_present_trials_is_an_error_not_a_panic() {
     let p = plan(1.6, -0.3, 0.1, 50, "");
-    let err = scenario_information(&p, &p.designs[0], 4).unwrap_err();
+    let err = scenario_information(&p, &p.designs()[0], 4).unwrap_err();
     assert!(err.to_string().contains("4 trials"), "{err}");
 }
 
@@ -177,7 +177,7 @@ fn unknown_base_rate_names_its_null_direction_and_profiles_d_prime() {
     );
     let p = Plan::load(std::path::Path::new(path)).unwrap();
     let design = p
-        .designs
+        .designs()
         .iter()
         .find(|d| d.name.contains("unknown"))
         .unwrap();
@@ -206,7 +206,7 @@ fn unknown_base_rate_names_its_null_direction_and_profiles_d_prime() {
         let i = ["d′", "c", "logit π"].iter().position(|n| *n == name);
         v[i.unwrap_or_else(|| panic!("unknown name in {text}"))] = coef.parse::<f64>().unwrap();
     }
-    let mut specs = condition_specs(design, &p.observer, 1600);
+    let mut specs = condition_specs(design, &p.observer(), 1600);
     specs.iter_mut().for_each(|s| s.lapse = None);
     let model = ObservationModel::new(specs).unwrap();
     let blocks = cell_probabilities(&model, &model.hypothesised_theta(), Order::First).unwrap();
@@ -250,7 +250,7 @@ fn unknown_base_rate_names_its_null_direction_and_profiles_d_prime() {
 fn a_tiny_census_at_huge_counts_is_weak_with_its_figures() {
     let extra = "record = \"error-totals\"\nbase_rate = \"census\"\ncensus = 2";
     let p = plan(1.6, -0.3, 0.3, 100, extra);
-    let info = scenario_information(&p, &p.designs[0], 10_000_000).unwrap();
+    let info = scenario_information(&p, &p.designs()[0], 10_000_000).unwrap();
     let Verdict::Weak { max_abs_corr, .. } = info.verdict else {
         panic!("{:?}", info.verdict)
     };

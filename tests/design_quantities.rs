@@ -69,10 +69,10 @@ census = 30
 fn labels_and_order_match_the_general_kernel() {
     let plan = Plan::from_str(std::path::Path::new("quantities.toml"), PLAN).unwrap();
     let summaries = run_plan(&plan, RunOptions::default(), &|_| {}).unwrap();
-    assert_eq!(summaries.len(), plan.designs.len());
+    assert_eq!(summaries.len(), plan.designs().len());
     for s in &summaries {
-        let design = &plan.designs[s.scenario.design];
-        let specs = condition_specs(design, &plan.observer, s.scenario.trials);
+        let design = &plan.designs()[s.scenario.design];
+        let specs = condition_specs(design, &plan.observer(), s.scenario.trials);
         let ours: Vec<(String, f64)> = reported_quantities(&specs)
             .iter()
             .map(|q| (quantity_label(q), q.truth))

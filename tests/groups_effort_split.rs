@@ -100,7 +100,7 @@ fn hand_numbers_are_as_stated() {
 fn approximate_search_finds_the_hand_optimum() {
     let delta = 0.05;
     let p = plan(delta, 10, 1, None, A);
-    let design = &p.designs[0];
+    let design = &p.designs()[0];
     let (tests, _) = group_tests(&p, design);
     let goals = Goals {
         tests: vec![0],
@@ -108,14 +108,14 @@ fn approximate_search_finds_the_hand_optimum() {
         criterion_half_width: None,
         d_prime_half_width: None,
     };
-    let pop = Population::from_animals(p.animals.as_ref().unwrap());
-    let approx = Approximation::new(design, &p.observer, pop).unwrap();
+    let pop = Population::from_animals(p.animals().as_ref().unwrap());
+    let approx = Approximation::new(design, &p.observer(), pop).unwrap();
     let trials = candidate_trials(design, 20, 200);
     let search = Search::new(
         &approx,
         &tests,
         &goals,
-        p.budget.unwrap(),
+        p.budget().unwrap(),
         1,
         0.05,
         0.95,
@@ -172,9 +172,9 @@ fn simulated_split_lands_on_the_hand_optimum_and_holds_on_a_fresh_seed() {
     let setup = DesignSetup {
         plan: &p,
         index: 0,
-        design: &p.designs[0],
-        tests: group_tests(&p, &p.designs[0]).0,
-        population: Population::from_animals(p.animals.as_ref().unwrap()),
+        design: &p.designs()[0],
+        tests: group_tests(&p, &p.designs()[0]).0,
+        population: Population::from_animals(p.animals().as_ref().unwrap()),
     };
     let fresh = run_point(&setup, least.animals, least.trials, 4000, 777_001, &|_| {}).unwrap();
     let power = fresh.tests[0].two_stage.value;

@@ -33,14 +33,14 @@ fn wald_power_matches_normal_approximation_at_large_counts() {
     let p = plan(DPRIME_TEST, 1.0, 1.25, "[800]", 5, 4000);
     let s = &run_plan(&p, RunOptions::default(), &|_| {}).unwrap()[0];
     let test = &s.tests[0];
-    let design = &p.designs[0];
+    let design = &p.designs()[0];
     let model = asymptotic::analysis_model(&p, design, 800).unwrap();
-    let contrast = vigil::power::contrast(&p, design, &model, &p.hypotheses[0]).unwrap();
+    let contrast = vigil::power::contrast(&p, design, &model, &p.hypotheses()[0]).unwrap();
     let point = asymptotic::at(
         &p,
         design,
         800,
-        &[(contrast.clone(), &p.hypotheses[0])],
+        &[(contrast.clone(), &p.hypotheses()[0])],
         &[],
     )
     .unwrap();
@@ -125,8 +125,7 @@ fn search_is_reproducible_monotone_and_holds_on_a_fresh_seed() {
     );
     // Re-run the answer with a fresh seed: power within Monte Carlo error of the target
     // (its Wilson interval reaches 0.8).
-    let mut fresh = shift_plan(0.8, 999);
-    fresh.designs[0].trials = vec![n];
+    let fresh = shift_plan(0.8, 999).with_design_trials(0, vec![n]).unwrap();
     let s = &run_plan(&fresh, RunOptions::default(), &|_| {}).unwrap()[0];
     assert!(
         s.tests[0].likelihood_ratio.high >= 0.8,

@@ -41,7 +41,7 @@ pub struct DesignScan {
 /// Scans every design of `plan`. Profile ranges are computed at every count that does not
 /// identify θ (cheap next to a simulation: a few hundred small fits per count).
 pub fn scan_plan(plan: &Plan, options: ScanOptions) -> Result<Vec<DesignScan>, InformationError> {
-    plan.designs
+    plan.designs()
         .iter()
         .map(|design| {
             let info = DesignInformation::new(plan, design)?;

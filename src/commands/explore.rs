@@ -5,10 +5,10 @@
 //! Exit codes as for the other commands (see [`crate::commands`]): 2 for a bad plan, bad options
 //! or an output path that cannot be written (all found before any work); 1 otherwise.
 
+use super::AppError;
 use crate::analytic::information::InformationError;
 use crate::analytic::scan::{ScanOptions, scan_plan};
 use crate::analytic::trial_grid::{DEFAULT_POINTS, MIN_TRIALS};
-use super::AppError;
 use crate::evaluate::RunError;
 use crate::plan::{Plan, PlanError};
 use crate::report::{self, PendingFile};

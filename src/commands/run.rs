@@ -1,9 +1,9 @@
 //! `vigil run`: load the plan, claim the output files, run every scenario, the search and the
 //! groups, then write the outputs whole and compose the terminal report.
 
-use crate::engine::ScenarioSummary;
-use crate::evaluate::{self, RunError, RunOptions};
 use super::AppError;
+use crate::engine::ScenarioSummary;
+use crate::evaluate::{self, RunOptions};
 use crate::plan::Plan;
 use crate::report::{self, PendingFile};
 use std::path::PathBuf;
@@ -30,7 +30,7 @@ pub struct PreparedRun {
 impl PreparedRun {
     /// Replicates the run will simulate (for a progress bar).
     pub fn total_replicates(&self) -> u64 {
-        let groups = if !self.options.exact && self.plan.animals.is_some() {
+        let groups = if !self.options.exact && self.plan.animals().is_some() {
             crate::groups::total_group_replicates(&self.plan)
         } else {
             0
@@ -43,10 +43,7 @@ impl PreparedRun {
 pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
     let mut plan = Plan::load(&req.plan)?;
     if let Some(n) = req.experiments {
-        if n == 0 {
-            return Err(AppError::Run(RunError::NoExperiments));
-        }
-        plan.study.experiments = n;
+        plan = plan.with_experiments(n)?;
     }
     let options = RunOptions { exact: req.exact };
     evaluate::preflight(&plan, options)?;
@@ -77,12 +74,13 @@ pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<Stri
     // With [animals] the targets are judged at group level (the effort split), not for
     // one idealised animal.
     let searches =
-        if plan.targets.any(&plan.hypotheses) && !run.options.exact && plan.animals.is_none() {
+        if plan.targets().any(&plan.hypotheses()) && !run.options.exact && plan.animals().is_none()
+        {
             crate::search::search_plan(plan, progress)?
         } else {
             Vec::new()
         };
-    let groups = match (&plan.animals, run.options.exact) {
+    let groups = match (&plan.animals(), run.options.exact) {
         (Some(_), false) => Some(crate::groups::run_groups(plan, progress)?),
         _ => None,
     };

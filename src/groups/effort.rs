@@ -88,7 +88,7 @@ pub struct EffortSplit {
 
 /// Replicates the effort split of one design may simulate at most.
 pub fn max_replicates(setup: &DesignSetup) -> u64 {
-    let Some(budget) = setup.plan.budget else {
+    let Some(budget) = *setup.plan.budget() else {
         return 0;
     };
     let g = goals(setup);
@@ -99,7 +99,7 @@ pub fn max_replicates(setup: &DesignSetup) -> u64 {
     if g.has_targets() {
         rows += MAX_ROWS + MAX_BUMPS;
     }
-    rows as u64 * setup.plan.study.experiments
+    rows as u64 * setup.plan.study().experiments
 }
 
 /// Simulations already run (grid cells and earlier rows), so no point is simulated twice.
@@ -123,8 +123,8 @@ impl Confirm<'_, '_> {
                     self.setup,
                     a.animals,
                     a.trials,
-                    plan.study.experiments,
-                    plan.study.seed,
+                    plan.study().experiments,
+                    plan.study().seed,
                     self.progress,
                 )?;
                 self.cache.push((key, s.clone()));
@@ -196,7 +196,7 @@ pub fn effort_split(
     progress: &(dyn Fn(u64) + Sync),
 ) -> Result<Result<EffortSplit, String>, GroupError> {
     let plan = setup.plan;
-    let Some(budget) = plan.budget else {
+    let Some(budget) = *plan.budget() else {
         return Ok(Err("no [budget] table, so no effort split".into()));
     };
     let goals = goals(setup);
@@ -211,15 +211,15 @@ pub fn effort_split(
         ));
     }
     let design = setup.design;
-    let Some(approximation) = Approximation::new(design, &plan.observer, setup.population) else {
+    let Some(approximation) = Approximation::new(design, &plan.observer(), setup.population) else {
         return Ok(Err(
             "no effort split: the design's expected information could not be computed".into(),
         ));
     };
-    let cap = per_condition_cap(design, plan.animals.as_ref().and_then(|a| a.trial_cap));
+    let cap = per_condition_cap(design, plan.animals().as_ref().and_then(|a| a.trial_cap));
     let hi = cap
-        .unwrap_or(plan.study.max_trials)
-        .min(plan.study.max_trials);
+        .unwrap_or(plan.study().max_trials)
+        .min(plan.study().max_trials);
     let lo = design.trials.first().copied().unwrap_or(2).min(hi);
     let trials = candidate_trials(design, lo, hi);
     let search = Search::new(
@@ -228,8 +228,8 @@ pub fn effort_split(
         &goals,
         budget,
         design.conditions.len() as u32,
-        plan.study.alpha,
-        plan.study.confidence,
+        plan.study().alpha,
+        plan.study().confidence,
         &trials,
     );
     let mut split = EffortSplit {

@@ -61,7 +61,7 @@ pub fn goals(setup: &DesignSetup) -> Goals {
     let half = |q: Quantity| {
         setup
             .plan
-            .targets
+            .targets()
             .half_width
             .iter()
             .find(|(x, _)| *x == q)

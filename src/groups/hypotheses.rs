@@ -165,7 +165,7 @@ pub use crate::power::ideal_criterion;
 pub fn group_tests(plan: &Plan, design: &Design) -> (Vec<GroupTest>, Vec<String>) {
     let mut tests = Vec::new();
     let mut notes = Vec::new();
-    for h in &plan.hypotheses {
+    for h in plan.hypotheses() {
         match group_test(plan, design, h) {
             Ok(t) => tests.push(t),
             Err(why) => notes.push(format!("\"{}\" is not tested here: {why}", h.name)),
@@ -229,7 +229,7 @@ fn group_test(plan: &Plan, design: &Design, h: &Hypothesis) -> Result<GroupTest,
             if !estimates_sigma {
                 return Err("the design does not estimate σ".into());
             }
-            (Contrast::LnSigma, 0.0, plan.observer.sigma.ln())
+            (Contrast::LnSigma, 0.0, plan.observer().sigma.ln())
         }
         TestKind::GroupDifference => {
             let j = first()?;
@@ -248,7 +248,7 @@ fn group_test(plan: &Plan, design: &Design, h: &Hypothesis) -> Result<GroupTest,
         null,
         truth,
         effect: truth - null,
-        target: h.power.or(plan.targets.power),
+        target: h.power.or(plan.targets().power),
     })
 }
 

@@ -111,10 +111,10 @@ pub struct GroupReport {
 }
 
 fn setups(plan: &Plan) -> Result<Vec<DesignSetup<'_>>, GroupError> {
-    let animals = plan.animals.as_ref().ok_or(GroupError::NoAnimals)?;
+    let animals = plan.animals().as_ref().ok_or(GroupError::NoAnimals)?;
     let population = Population::from_animals(animals);
     Ok(plan
-        .designs
+        .designs()
         .iter()
         .enumerate()
         .map(|(index, design)| DesignSetup {
@@ -130,7 +130,7 @@ fn setups(plan: &Plan) -> Result<Vec<DesignSetup<'_>>, GroupError> {
 /// Group studies the whole plan may simulate (grid plus the effort split's upper bound), for
 /// a progress bar; [`run_groups`] reports exactly this many in total.
 pub fn total_group_replicates(plan: &Plan) -> u64 {
-    let (Ok(setups), Some(animals)) = (setups(plan), plan.animals.as_ref()) else {
+    let (Ok(setups), Some(animals)) = (setups(plan), plan.animals().as_ref()) else {
         return 0;
     };
     setups
@@ -140,7 +140,7 @@ pub fn total_group_replicates(plan: &Plan) -> u64 {
             if trials == 0 {
                 return 0;
             }
-            animals.counts.len() as u64 * trials * plan.study.experiments
+            animals.counts.len() as u64 * trials * plan.study().experiments
                 + effort::max_replicates(s)
         })
         .sum()
@@ -149,7 +149,7 @@ pub fn total_group_replicates(plan: &Plan) -> u64 {
 /// Runs the grid of every design and, with a `[budget]`, the effort split; `progress` is told
 /// how many group studies finished.
 pub fn run_groups(plan: &Plan, progress: &(dyn Fn(u64) + Sync)) -> Result<GroupReport, GroupError> {
-    let animals = plan.animals.as_ref().ok_or(GroupError::NoAnimals)?;
+    let animals = plan.animals().as_ref().ok_or(GroupError::NoAnimals)?;
     let total = total_group_replicates(plan);
     let done = AtomicU64::new(0);
     let counted = |k: u64| {
@@ -174,8 +174,8 @@ pub fn run_groups(plan: &Plan, progress: &(dyn Fn(u64) + Sync)) -> Result<GroupR
                     &setup,
                     n_animals,
                     n,
-                    plan.study.experiments,
-                    plan.study.seed,
+                    plan.study().experiments,
+                    plan.study().seed,
                     &counted,
                 )?;
                 cells.push(GridCell {
@@ -183,7 +183,7 @@ pub fn run_groups(plan: &Plan, progress: &(dyn Fn(u64) + Sync)) -> Result<GroupR
                     trials: n,
                     trials_per_animal: setup.trials_per_animal(n),
                     cost: plan
-                        .budget
+                        .budget()
                         .map(|b| b.cost(n_animals, setup.trials_per_animal(n))),
                     summary,
                 });
@@ -199,7 +199,7 @@ pub fn run_groups(plan: &Plan, progress: &(dyn Fn(u64) + Sync)) -> Result<GroupR
             match effort::effort_split(&setup, &trials, cache, &counted)? {
                 Ok(split) => Some(split),
                 Err(note) => {
-                    if plan.budget.is_some() {
+                    if plan.budget().is_some() {
                         notes.push(note);
                     }
                     None
@@ -237,13 +237,13 @@ pub fn run_groups(plan: &Plan, progress: &(dyn Fn(u64) + Sync)) -> Result<GroupR
     }
     Ok(GroupReport {
         population: Population::from_animals(animals),
-        lapse: plan.observer.lapse,
-        alpha: plan.study.alpha,
-        confidence: plan.study.confidence,
-        experiments: plan.study.experiments,
-        rate_correction: plan.study.rate_correction,
+        lapse: plan.observer().lapse,
+        alpha: plan.study().alpha,
+        confidence: plan.study().confidence,
+        experiments: plan.study().experiments,
+        rate_correction: plan.study().rate_correction,
         trial_cap: animals.trial_cap,
-        budget: plan.budget,
+        budget: *plan.budget(),
         designs,
     })
 }

@@ -52,20 +52,26 @@ pub enum CriterionRule {
     Optimal { payoffs: Payoffs, fraction: f64 },
 }
 
-/// A validated plan.
+/// A validated plan. Its fields are private: the rest of the program reads them through
+/// accessors and trusts them without re-checking; an override (such as `--experiments`)
+/// goes through a constructor that validates again and returns a new plan.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Plan {
     /// The file the plan came from (for messages and the JSON record).
-    pub source: PathBuf,
-    pub study: Study,
-    pub observer: Observer,
-    pub criterion_rule: CriterionRule,
-    pub designs: Vec<Design>,
-    pub hypotheses: Vec<Hypothesis>,
-    pub targets: Targets,
-    pub animals: Option<Animals>,
-    pub budget: Option<Budget>,
+    source: PathBuf,
+    study: Study,
+    observer: Observer,
+    criterion_rule: CriterionRule,
+    designs: Vec<Design>,
+    hypotheses: Vec<Hypothesis>,
+    targets: Targets,
+    animals: Option<Animals>,
+    budget: Option<Budget>,
 }
+
+/// Largest number of simulated experiments per scenario a plan or `--experiments` may ask
+/// for (10⁸: about an hour per scenario on the slowest route at one core).
+pub const MAX_EXPERIMENTS: u64 = 100_000_000;
 
 impl Plan {
     /// Reads, parses and validates a plan file.
@@ -85,6 +91,71 @@ impl Plan {
         let raw: raw::RawPlan =
             toml::from_str(text).map_err(|e| toml_error::translate(path, text, &e))?;
         validate::validate(path, text, raw)
+    }
+
+    /// The file the plan came from.
+    pub fn source(&self) -> &Path {
+        &self.source
+    }
+    /// `[study]`.
+    pub fn study(&self) -> &Study {
+        &self.study
+    }
+    /// The hypothesised observer (`[observer]`).
+    pub fn observer(&self) -> &Observer {
+        &self.observer
+    }
+    /// How the observer's criterion was given.
+    pub fn criterion_rule(&self) -> &CriterionRule {
+        &self.criterion_rule
+    }
+    /// The candidate designs, in plan order.
+    pub fn designs(&self) -> &[Design] {
+        &self.designs
+    }
+    /// The `[[hypothesis]]` tables, in plan order.
+    pub fn hypotheses(&self) -> &[Hypothesis] {
+        &self.hypotheses
+    }
+    /// `[targets]`.
+    pub fn targets(&self) -> &Targets {
+        &self.targets
+    }
+    /// `[animals]`, when the plan has groups of animals.
+    pub fn animals(&self) -> &Option<Animals> {
+        &self.animals
+    }
+    /// `[budget]`, when given.
+    pub fn budget(&self) -> &Option<Budget> {
+        &self.budget
+    }
+
+    /// The same plan with `experiments` simulated experiments per scenario (the
+    /// `--experiments` override), checked like the plan's own value.
+    pub fn with_experiments(&self, experiments: u64) -> Result<Plan, PlanError> {
+        if !(1..=MAX_EXPERIMENTS).contains(&experiments) {
+            return Err(PlanError {
+                file: self.source.clone(),
+                line: None,
+                key: "--experiments".into(),
+                problem: format!("{experiments} experiments is outside the allowed range"),
+                allowed: format!("a whole number from 1 to {MAX_EXPERIMENTS}"),
+            });
+        }
+        let mut plan = self.clone();
+        plan.study.experiments = experiments;
+        Ok(plan)
+    }
+
+    /// The same plan with design `design` run at the trial counts `trials` only (for
+    /// studies of one design at chosen counts); `None` when the index or counts are invalid.
+    pub fn with_design_trials(&self, design: usize, trials: Vec<u32>) -> Option<Plan> {
+        if design >= self.designs.len() || trials.is_empty() || trials.contains(&0) {
+            return None;
+        }
+        let mut plan = self.clone();
+        plan.designs[design].trials = trials;
+        Some(plan)
     }
 
     /// Every (design, trial count) pair, in plan order.

@@ -27,7 +27,7 @@ pub struct AsymptoticPoint {
 
 /// The analysis model of a design at `trials` (lapses are not part of the fit).
 pub fn analysis_model(plan: &Plan, design: &Design, trials: u32) -> Option<ObservationModel> {
-    let mut specs = condition_specs(design, &plan.observer, trials);
+    let mut specs = condition_specs(design, &plan.observer(), trials);
     specs.iter_mut().for_each(|s| s.lapse = None);
     ObservationModel::new(specs).ok()
 }
@@ -47,7 +47,7 @@ pub fn at(
         .total(&model.block_sizes())
         .ok()?;
     let prec = precision(&model, &theta, &info).ok()??;
-    let alpha = plan.study.alpha;
+    let alpha = plan.study().alpha;
     let power = contrasts
         .iter()
         .map(|(c, _)| {
@@ -55,7 +55,7 @@ pub fn at(
             wald_power(c.truth - c.null, se, alpha, c.sided).unwrap_or(0.0)
         })
         .collect();
-    let z = z_critical(plan.study.confidence);
+    let z = z_critical(plan.study().confidence);
     let half_width = half_widths
         .iter()
         .map(|(q, _)| {

@@ -16,8 +16,8 @@ use crate::plan::{CriterionRule, Plan};
 
 /// The ideal observer's criterion for a condition, when the plan has payoffs.
 pub fn ideal_criterion(plan: &Plan, presence: f64, d_prime: f64) -> Option<f64> {
-    match plan.criterion_rule {
-        CriterionRule::Optimal { payoffs, .. } => IdealObserver::new(d_prime, presence, payoffs)
+    match plan.criterion_rule() {
+        CriterionRule::Optimal { payoffs, .. } => IdealObserver::new(d_prime, presence, *payoffs)
             .ok()
             .map(|i| i.optimal_criterion()),
         CriterionRule::Fixed { .. } => None,

@@ -18,7 +18,7 @@ use crate::plan::Plan;
 
 /// The contrasts of every plan hypothesis that this design can test.
 pub fn contrasts_for(plan: &Plan, design: &Design, model: &ObservationModel) -> Vec<Contrast> {
-    plan.hypotheses
+    plan.hypotheses()
         .iter()
         .filter(|h| h.kind != TestKind::GroupDifference)
         .filter_map(|h| contrast(plan, design, model, h))

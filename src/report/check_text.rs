@@ -12,25 +12,25 @@ pub fn render(path: &Path, plan: &Plan) -> String {
         out,
         "{}: plan is valid — {}",
         path.display(),
-        plan.study.title
+        plan.study().title
     );
-    let o = &plan.observer;
+    let o = &plan.observer();
     let _ = writeln!(
         out,
         "observer: d′ = {}, c = {}, σ = {}; {} experiments per scenario, seed {}, {:.0}% intervals, {} correction",
         o.d_prime,
         o.criterion,
         o.sigma,
-        plan.study.experiments,
-        plan.study.seed,
-        100.0 * plan.study.confidence,
-        plan.study.rate_correction.name()
+        plan.study().experiments,
+        plan.study().seed,
+        100.0 * plan.study().confidence,
+        plan.study().rate_correction.name()
     );
     let mut t = super::style::new_table(vec![
         "scenario", "design", "record", "presence", "trials", "present", "absent",
     ]);
     for s in plan.scenarios() {
-        let d = &plan.designs[s.design];
+        let d = &plan.designs()[s.design];
         t.add_row(vec![
             (s.id + 1).to_string(),
             d.name.clone(),

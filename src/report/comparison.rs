@@ -61,11 +61,11 @@ pub struct Comparison {
 /// Every yes/no–rating pair of the plan with at least one common trial count.
 pub fn comparisons(plan: &Plan, summaries: &[ScenarioSummary]) -> Vec<Comparison> {
     let mut out = Vec::new();
-    for (y, yd) in plan.designs.iter().enumerate() {
+    for (y, yd) in plan.designs().iter().enumerate() {
         if !(matches!(yd.response, Response::YesNo) && yd.is_single_table()) {
             continue;
         }
-        for (r, rd) in plan.designs.iter().enumerate() {
+        for (r, rd) in plan.designs().iter().enumerate() {
             let Response::Rating(scale) = &rd.response else {
                 continue;
             };

@@ -42,7 +42,7 @@ pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> Result<Vec<u8>, csv
     let mut w = csv::Writer::from_writer(Vec::new());
     w.write_record(COLUMNS)?;
     for s in summaries {
-        let design = &plan.designs[s.scenario.design];
+        let design = &plan.designs()[s.scenario.design];
         let method = match s.method {
             crate::engine::Method::MonteCarlo => "monte-carlo",
             crate::engine::Method::Exact => "exact",

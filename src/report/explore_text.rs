@@ -28,8 +28,8 @@ const FLAT_CORR: f64 = 0.005;
 /// The whole `explore` report as text.
 pub fn render(plan: &Plan, scans: &[DesignScan]) -> String {
     let mut out = String::new();
-    let o = &plan.observer;
-    let _ = writeln!(out, "vigil explore — {}", plan.study.title);
+    let o = &plan.observer();
+    let _ = writeln!(out, "vigil explore — {}", plan.study().title);
     let _ = writeln!(
         out,
         "Hypothesised observer: d′ = {:.2}, c = {:+.2}, σ = {}. Expected (Fisher) information at these values, lapses off; no simulation.",
@@ -104,7 +104,7 @@ pub fn reading(plan: &Plan, scan: &DesignScan) -> String {
     let (Some(first), Some(last)) = (rows.first(), rows.last()) else {
         return "nothing to report".into();
     };
-    let level = plan.study.confidence;
+    let level = plan.study().confidence;
     let pct = 100.0 * level;
     if let Verdict::NotIdentified { .. } = last.verdict {
         let mut s = plain_verdict(last);

@@ -20,7 +20,7 @@ question. A cheaper allocation with more animals is not automatically the better
 
 /// The whole group report: a title, [`render_section`], and the general caution.
 pub fn render(plan: &Plan, report: &GroupReport) -> String {
-    let mut out = format!("vigil groups — {}\n", plan.study.title);
+    let mut out = format!("vigil groups — {}\n", plan.study().title);
     out.push_str(&render_section(plan, report));
     let _ = writeln!(out, "Caution: {CAUTION}");
     out
@@ -40,7 +40,7 @@ pub fn render_section(plan: &Plan, report: &GroupReport) -> String {
 }
 
 fn header(out: &mut String, plan: &Plan, r: &GroupReport) {
-    let o = &plan.observer;
+    let o = &plan.observer();
     let p = &r.population;
     let mut line = format!(
         "Population: d′ = {:.2} (between-animal SD {:.2}), c = {:+.2} (SD {:.2}), correlation of an animal's d′ and c {:+.2}",

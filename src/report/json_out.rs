@@ -29,7 +29,7 @@ pub fn render(
     let doc = Document {
         tool: "vigil",
         version: env!("CARGO_PKG_VERSION"),
-        seed: plan.study.seed,
+        seed: plan.study().seed,
         plan,
         results: summaries,
         comparisons: super::comparison::comparisons(plan, summaries),

@@ -21,7 +21,7 @@ pub fn render_run(
     groups: Option<&crate::groups::GroupReport>,
 ) -> String {
     let mut out = render_designs(plan, summaries);
-    out.push_str(&super::verdict::render(searches, plan.study.max_trials));
+    out.push_str(&super::verdict::render(searches, plan.study().max_trials));
     if let Some(g) = groups {
         out.push_str(&super::groups_text::render_section(plan, g));
     }
@@ -40,7 +40,7 @@ pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> String {
 fn render_designs(plan: &Plan, summaries: &[ScenarioSummary]) -> String {
     let mut out = String::new();
     header(&mut out, plan, summaries);
-    for (d, design) in plan.designs.iter().enumerate() {
+    for (d, design) in plan.designs().iter().enumerate() {
         let rows: Vec<&ScenarioSummary> = summaries
             .iter()
             .filter(|s| s.scenario.design == d)
@@ -54,7 +54,7 @@ fn render_designs(plan: &Plan, summaries: &[ScenarioSummary]) -> String {
 }
 
 fn header(out: &mut String, plan: &Plan, summaries: &[ScenarioSummary]) {
-    let o = &plan.observer;
+    let o = &plan.observer();
     let r = o.rates();
     let lean = if o.criterion > 0.0 {
         "conservative"
@@ -63,7 +63,7 @@ fn header(out: &mut String, plan: &Plan, summaries: &[ScenarioSummary]) {
     } else {
         "unbiased"
     };
-    let _ = writeln!(out, "vigil — {}", plan.study.title);
+    let _ = writeln!(out, "vigil — {}", plan.study().title);
     let _ = writeln!(
         out,
         "Hypothesised observer: d′ = {:.2}, c = {:+.2} ({lean}), σ = {}; yes/no rates H = {:.3}, F = {:.3}",
@@ -75,14 +75,15 @@ fn header(out: &mut String, plan: &Plan, summaries: &[ScenarioSummary]) {
     } else {
         format!(
             "{} simulated experiments per row, seed {}",
-            plan.study.experiments, plan.study.seed
+            plan.study().experiments,
+            plan.study().seed
         )
     };
     let _ = writeln!(
         out,
         "{how}; {:.0}% Wald intervals; rates of 0 or 1: {} correction",
-        100.0 * plan.study.confidence,
-        plan.study.rate_correction.name()
+        100.0 * plan.study().confidence,
+        plan.study().rate_correction.name()
     );
     let _ = writeln!(
         out,
@@ -119,18 +120,18 @@ fn design_block(out: &mut String, plan: &Plan, design: &Design, rows: &[&Scenari
         _ => format!("; {}", design.record_label()),
     };
     let _ = writeln!(out, "■ {}  ({detail}{record}; {presence})", design.name);
-    let _ = writeln!(out, "{}", precision_table(rows, plan.study.confidence));
+    let _ = writeln!(out, "{}", precision_table(rows, plan.study().confidence));
     let _ = writeln!(out, "{}", tradeoff_table(rows));
     if rows.iter().any(|s| !s.tests.is_empty()) {
-        let _ = writeln!(out, "{}", power_table(rows, plan.study.alpha));
-        for line in type_one_notes(rows, plan.study.alpha) {
+        let _ = writeln!(out, "{}", power_table(rows, plan.study().alpha));
+        for line in type_one_notes(rows, plan.study().alpha) {
             let _ = writeln!(out, "{line}");
         }
     }
     let _ = writeln!(
         out,
         "Reading: {}",
-        reading(design, rows, plan.study.confidence)
+        reading(design, rows, plan.study().confidence)
     );
     let _ = writeln!(out);
 }

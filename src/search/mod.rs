@@ -101,11 +101,11 @@ fn targets_for<'a>(
     let mut contrasts = Vec::new();
     if let Some(model) = asymptotic::analysis_model(plan, design, design.trials[0]) {
         for h in plan
-            .hypotheses
+            .hypotheses()
             .iter()
             .filter(|h| h.kind != TestKind::GroupDifference)
         {
-            let Some(p) = h.power.or(plan.targets.power) else {
+            let Some(p) = h.power.or(plan.targets().power) else {
                 continue;
             };
             if let Some(c) = contrast(plan, design, &model, h) {
@@ -117,10 +117,10 @@ fn targets_for<'a>(
             }
         }
     }
-    for &(quantity, at_most) in &plan.targets.half_width {
+    for &(quantity, at_most) in &plan.targets().half_width {
         targets.push(Target::HalfWidth { quantity, at_most });
     }
-    if let Some(at_most) = plan.targets.max_correlation {
+    if let Some(at_most) = plan.targets().max_correlation {
         targets.push(Target::Correlation { at_most });
     }
     (targets, contrasts)
@@ -160,7 +160,7 @@ fn evaluate(
         id: SEARCH_STREAM_BASE + d as u64,
         design: d,
         trials,
-        split: split_trials(trials, plan.designs[d].presence),
+        split: split_trials(trials, plan.designs()[d].presence),
     };
     let s = run_scenario(plan, &scenario, RunOptions::default(), progress)?;
     Ok(targets.iter().map(|t| value(&s, t)).collect())
@@ -234,7 +234,7 @@ pub fn search_design(
     d: usize,
     progress: &(dyn Fn(u64) + Sync),
 ) -> Result<SearchResult, RunError> {
-    let design = &plan.designs[d];
+    let design = &plan.designs()[d];
     let (targets, contrasts) = targets_for(plan, design);
     let result = |outcome| SearchResult {
         design: design.name.clone(),
@@ -251,7 +251,7 @@ pub fn search_design(
         })
         .collect();
     let lo_valid = smallest_valid(design);
-    let max = plan.study.max_trials.max(lo_valid);
+    let max = plan.study().max_trials.max(lo_valid);
     let asym = |n: u32| asymptotic::at(plan, design, n, &contrasts, &half_widths);
     // 1. Bracket with the expected information on a geometric grid, refined by bisection.
     let mut asymptotic_trials = None;
@@ -402,7 +402,7 @@ fn band(
         return 0;
     };
     let slope = (b.power[i] - a.power[i]) / f64::from(step);
-    let se = (at_least * (1.0 - at_least) / plan.study.experiments as f64).sqrt();
+    let se = (at_least * (1.0 - at_least) / plan.study().experiments as f64).sqrt();
     if slope > 0.0 {
         (se / slope).ceil() as u32
     } else {
@@ -454,7 +454,7 @@ pub fn search_plan(
     plan: &Plan,
     progress: &(dyn Fn(u64) + Sync),
 ) -> Result<Vec<SearchResult>, RunError> {
-    (0..plan.designs.len())
+    (0..plan.designs().len())
         .map(|d| search_design(plan, d, progress))
         .collect()
 }
