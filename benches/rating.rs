@@ -6,51 +6,39 @@
 
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 use std::hint::black_box;
-use vigil::design::{Condition, RatingScale, Split};
+use std::path::Path;
 use vigil::engine::parallel::run_replicates;
-use vigil::engine::rating_kernel::RatingKernel;
-use vigil::infer::z_critical;
-use vigil::model::Observer;
-use vigil::vocab::RateCorrection;
+use vigil::evaluate::scenario_kernel;
+use vigil::plan::Plan;
 
 const REPLICATES: u64 = 20_000;
+
+/// The benchmark scenario as a plan, so the kernel is the one `vigil run` builds.
+const PLAN: &str = r#"
+[study]
+title = "rating benchmark (invented)"
+seed = 11
+rate_correction = "log-linear"
+
+[observer]
+d_prime = 1.5
+criterion = 0.0
+sigma = 1.25
+
+[[design]]
+name = "K = 5"
+presence = 0.5
+trials = [100]
+scale = { categories = 5, boundary = 2, criteria = [-0.75, 0.0, 0.75, 1.5] }
+"#;
 
 fn one_core(c: &mut Criterion) {
     let pool = rayon::ThreadPoolBuilder::new()
         .num_threads(1)
         .build()
         .unwrap();
-    let observer = Observer {
-        d_prime: 1.5,
-        criterion: 0.0,
-        sigma: 1.25,
-        lapse: None,
-    };
-    let condition = Condition {
-        name: "bench".into(),
-        presence: 0.5,
-        d_prime: 1.5,
-        criterion: 0.0,
-    };
-    let scale = RatingScale {
-        categories: 5,
-        boundary: 2,
-        criteria: vec![-1.25, -0.5, 0.25, 1.0],
-        fix_sigma: false,
-    };
-    let split = Split {
-        present: 50,
-        absent: 50,
-    };
-    let kernel = RatingKernel::new(
-        &scale,
-        &condition,
-        &observer,
-        split,
-        RateCorrection::LogLinear,
-        z_critical(0.95),
-    )
-    .unwrap();
+    let plan = Plan::from_str(Path::new("bench.toml"), PLAN).unwrap();
+    let kernel = scenario_kernel(&plan, &plan.scenarios()[0]).unwrap();
     let mut group = c.benchmark_group("rating datasets, one core");
     group.throughput(Throughput::Elements(REPLICATES));
     group.sample_size(20);

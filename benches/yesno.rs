@@ -5,7 +5,7 @@ use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 use std::hint::black_box;
 use std::path::Path;
 use vigil::engine::parallel::run_replicates;
-use vigil::engine::yesno_kernel::YesNoKernel;
+use vigil::engine::scenario_kernel::ScenarioKernel;
 use vigil::evaluate::{RunOptions, run_plan};
 use vigil::infer::z_critical;
 use vigil::model::Observer;
@@ -29,13 +29,14 @@ fn one_core(c: &mut Criterion) {
     group.throughput(Throughput::Elements(REPLICATES));
     group.sample_size(20);
     for (present, absent) in [(12, 28), (50, 50), (200, 200)] {
-        let kernel = YesNoKernel::new(
+        let kernel = ScenarioKernel::yes_no(
             &observer,
             present,
             absent,
             RateCorrection::LogLinear,
             z_critical(0.95),
-        );
+        )
+        .unwrap();
         group.bench_function(format!("{present}/{absent} trials"), |b| {
             b.iter(|| {
                 pool.install(|| black_box(run_replicates(&kernel, 7, 0, REPLICATES, &|_| {})))

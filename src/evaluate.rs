@@ -7,13 +7,10 @@
 
 use crate::analytic::exact;
 use crate::cells::verdict::{Identification, Verdict};
-use crate::design::{Design, Response};
-use crate::engine::cells_kernel::CellsKernel;
+use crate::design::Response;
 use crate::engine::parallel::run_replicates;
-use crate::engine::rating_kernel::RatingKernel;
+use crate::engine::scenario_kernel::{FitSettings, ScenarioKernel};
 use crate::engine::summary::{self, Method, ScenarioSummary};
-use crate::engine::tally;
-use crate::engine::yesno_kernel::YesNoKernel;
 use crate::infer::z_critical;
 use crate::plan::{Plan, Scenario};
 use thiserror::Error;
@@ -98,18 +95,6 @@ pub fn run_plan(
         .collect()
 }
 
-/// Whether any plan hypothesis can be tested on this design (it then runs through the
-/// general path, which fits the restricted models the likelihood-ratio tests need).
-pub fn tests_apply(plan: &Plan, design: &Design) -> bool {
-    if plan.hypotheses().is_empty() {
-        return false;
-    }
-    let trials = design.trials[0];
-    crate::design::model::observation_model(design, &plan.observer(), trials)
-        .map(|m| !crate::power::contrasts_for(plan, design, &m).is_empty())
-        .unwrap_or(false)
-}
-
 /// Runs one scenario, with the expected-information SE beside every simulated figure.
 pub fn run_scenario(
     plan: &Plan,
@@ -154,6 +139,28 @@ pub fn run_scenario(
     Ok(summary)
 }
 
+/// The kernel of one scenario: the design's route, and the plan's hypotheses as tests.
+pub fn scenario_kernel(plan: &Plan, scenario: &Scenario) -> Result<ScenarioKernel, RunError> {
+    let design = &plan.designs()[scenario.design];
+    let study = plan.study();
+    let settings = FitSettings {
+        correction: study.rate_correction,
+        z_crit: z_critical(study.confidence),
+        alpha: study.alpha,
+    };
+    ScenarioKernel::new(
+        design,
+        plan.observer(),
+        scenario.trials,
+        settings,
+        &|model| crate::power::contrasts_for(plan, design, model),
+    )
+    .map_err(|e| RunError::Model {
+        design: design.name.clone(),
+        message: e.to_string(),
+    })
+}
+
 /// Simulates (or enumerates) one scenario.
 fn simulate_scenario(
     plan: &Plan,
@@ -162,77 +169,29 @@ fn simulate_scenario(
     progress: &(dyn Fn(u64) + Sync),
 ) -> Result<ScenarioSummary, RunError> {
     let design = &plan.designs()[scenario.design];
-    let z_crit = z_critical(plan.study().confidence);
-    let study = &plan.study();
-    let model_error = |e: &dyn std::fmt::Display| RunError::Model {
-        design: design.name.clone(),
-        message: e.to_string(),
-    };
-    let simulate = |tally: tally::EstimateTally| {
-        summary::summarise(*scenario, &design.name, &tally, Method::MonteCarlo)
-    };
-    if !design.is_single_table() || tests_apply(plan, design) {
-        let kernel = CellsKernel::with_tests(
-            design,
-            &plan.observer(),
-            scenario.trials,
-            study.rate_correction,
-            z_crit,
-            &|model| crate::power::contrasts_for(plan, design, model),
-            study.alpha,
-        )
-        .map_err(|e| model_error(&e))?;
-        return Ok(simulate(run_replicates(
-            &kernel,
-            study.seed,
-            scenario.id,
-            study.experiments,
-            progress,
-        )));
+    let study = plan.study();
+    let kernel = scenario_kernel(plan, scenario)?;
+    if options.exact
+        && let Some(tally) = exact::enumerate(&kernel)
+    {
+        return Ok(summary::summarise(
+            *scenario,
+            &design.name,
+            &tally,
+            Method::Exact,
+        ));
     }
-    Ok(match &design.response {
-        Response::YesNo => {
-            let kernel = YesNoKernel::new(
-                &design.conditions[0].observer(&plan.observer()),
-                scenario.split.present,
-                scenario.split.absent,
-                study.rate_correction,
-                z_crit,
-            );
-            if options.exact {
-                summary::summarise(
-                    *scenario,
-                    &design.name,
-                    &exact::enumerate(&kernel),
-                    Method::Exact,
-                )
-            } else {
-                simulate(run_replicates(
-                    &kernel,
-                    study.seed,
-                    scenario.id,
-                    study.experiments,
-                    progress,
-                ))
-            }
-        }
-        Response::Rating(scale) => {
-            let kernel = RatingKernel::new(
-                scale,
-                &design.conditions[0],
-                &plan.observer(),
-                scenario.split,
-                study.rate_correction,
-                z_crit,
-            )
-            .map_err(|e| model_error(&e))?;
-            simulate(run_replicates(
-                &kernel,
-                study.seed,
-                scenario.id,
-                study.experiments,
-                progress,
-            ))
-        }
-    })
+    let tally = run_replicates(
+        &kernel,
+        study.seed,
+        scenario.id,
+        study.experiments,
+        progress,
+    );
+    Ok(summary::summarise(
+        *scenario,
+        &design.name,
+        &tally,
+        Method::MonteCarlo,
+    ))
 }

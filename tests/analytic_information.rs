@@ -111,7 +111,7 @@ fn a_scan_reuses_block_information_with_sizes_recomputed_per_count() {
     let d = DesignInformation::new(&p, design).unwrap();
     // 15 × 0.3 = 4.5 rounds up, 17 × 0.3 = 5.1 down: the split moves with rounding.
     for n in [15, 17, 50, 333, 1001] {
-        let mut specs = condition_specs(design, &p.observer(), n);
+        let mut specs = condition_specs(design, p.observer(), n);
         specs.iter_mut().for_each(|s| s.lapse = None);
         let model = ObservationModel::new(specs).unwrap();
         let theta = model.hypothesised_theta();
@@ -206,7 +206,7 @@ fn unknown_base_rate_names_its_null_direction_and_profiles_d_prime() {
         let i = ["d′", "c", "logit π"].iter().position(|n| *n == name);
         v[i.unwrap_or_else(|| panic!("unknown name in {text}"))] = coef.parse::<f64>().unwrap();
     }
-    let mut specs = condition_specs(design, &p.observer(), 1600);
+    let mut specs = condition_specs(design, p.observer(), 1600);
     specs.iter_mut().for_each(|s| s.lapse = None);
     let model = ObservationModel::new(specs).unwrap();
     let blocks = cell_probabilities(&model, &model.hypothesised_theta(), Order::First).unwrap();

@@ -72,7 +72,7 @@ fn labels_and_order_match_the_general_kernel() {
     assert_eq!(summaries.len(), plan.designs().len());
     for s in &summaries {
         let design = &plan.designs()[s.scenario.design];
-        let specs = condition_specs(design, &plan.observer(), s.scenario.trials);
+        let specs = condition_specs(design, plan.observer(), s.scenario.trials);
         let ours: Vec<(String, f64)> = reported_quantities(&specs)
             .iter()
             .map(|q| (quantity_label(q), q.truth))

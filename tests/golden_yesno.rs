@@ -4,8 +4,8 @@
 use serde_json::Value;
 use std::path::Path;
 use vigil::analytic::exact;
+use vigil::engine::scenario_kernel::ScenarioKernel;
 use vigil::engine::summary::{Method, summarise};
-use vigil::engine::yesno_kernel::YesNoKernel;
 use vigil::fit::{YesNoFit, ZEntry, fit_yes_no, z_variance};
 use vigil::infer::wilson_interval;
 use vigil::infer::z_critical;
@@ -127,8 +127,9 @@ fn exact_enumeration_matches_scipy() {
             lapse: None,
         };
         let (ns, nn) = (u(&case, "n_present"), u(&case, "n_absent"));
-        let kernel = YesNoKernel::new(&observer, ns, nn, rule(&case), z_critical(0.95));
-        let tally = exact::enumerate(&kernel);
+        let kernel =
+            ScenarioKernel::yes_no(&observer, ns, nn, rule(&case), z_critical(0.95)).unwrap();
+        let tally = exact::enumerate(&kernel).unwrap();
         let scenario = Scenario {
             id: 0,
             design: 0,

@@ -109,7 +109,7 @@ fn approximate_search_finds_the_hand_optimum() {
         d_prime_half_width: None,
     };
     let pop = Population::from_animals(p.animals().as_ref().unwrap());
-    let approx = Approximation::new(design, &p.observer(), pop).unwrap();
+    let approx = Approximation::new(design, p.observer(), pop).unwrap();
     let trials = candidate_trials(design, 20, 200);
     let search = Search::new(
         &approx,

@@ -15,8 +15,8 @@
 use std::path::Path;
 use vigil::design::Split;
 use vigil::engine::parallel::run_replicates;
+use vigil::engine::scenario_kernel::ScenarioKernel;
 use vigil::engine::summary::{Method, summarise};
-use vigil::engine::yesno_kernel::YesNoKernel;
 use vigil::groups::run_groups;
 use vigil::infer::z_critical;
 use vigil::model::Observer;
@@ -71,13 +71,14 @@ fn group_estimates_match_one_subject_with_all_the_trials() {
         sigma: 1.0,
         lapse: None,
     };
-    let kernel = YesNoKernel::new(
+    let kernel = ScenarioKernel::yes_no(
         &observer,
         n / 2,
         n / 2,
         RateCorrection::LogLinear,
         z_critical(0.95),
-    );
+    )
+    .unwrap();
     let tally = run_replicates(&kernel, 7, 0, R, &|_| {});
     let scenario = Scenario {
         id: 0,

@@ -5,8 +5,8 @@
 //! probabilities as weights gives the same table with no Monte Carlo error.
 
 use crate::engine::parallel::Kernel;
+use crate::engine::scenario_kernel::{Estimator, ScenarioKernel};
 use crate::engine::tally::EstimateTally;
-use crate::engine::yesno_kernel::YesNoKernel;
 
 /// Largest number of (h, f) outcomes enumerated; beyond it Monte Carlo is the tool.
 pub const MAX_OUTCOMES: u64 = 4_000_000;
@@ -16,11 +16,19 @@ pub fn can_enumerate(n_present: u32, n_absent: u32) -> bool {
     (u64::from(n_present) + 1) * (u64::from(n_absent) + 1) <= MAX_OUTCOMES
 }
 
-/// The exact tally of a yes/no scenario: every outcome weighted by its probability.
-pub fn enumerate(kernel: &YesNoKernel) -> EstimateTally {
+/// The exact tally of a yes/no scenario: every outcome weighted by the probability the
+/// scenario's sampler gives it. `None` unless the kernel is a single yes/no table on the
+/// closed-form route without tests.
+pub fn enumerate(kernel: &ScenarioKernel) -> Option<EstimateTally> {
+    let Estimator::YesNo(estimator) = kernel.estimator() else {
+        return None;
+    };
+    if kernel.has_tests() {
+        return None;
+    }
     let mut tally = kernel.tally();
-    let ph = kernel.hits.pmf();
-    let pf = kernel.false_alarms.pmf();
+    let ph = kernel.sampler().binomial_table(0)?.pmf();
+    let pf = kernel.sampler().binomial_table(1)?.pmf();
     for (h, &wh) in ph.iter().enumerate() {
         if wh == 0.0 {
             continue;
@@ -28,9 +36,9 @@ pub fn enumerate(kernel: &YesNoKernel) -> EstimateTally {
         for (f, &wf) in pf.iter().enumerate() {
             let w = wh * wf;
             if w > 0.0 {
-                kernel.record(h as u32, f as u32, w, &mut tally);
+                estimator.record(h as u32, f as u32, w, &mut tally);
             }
         }
     }
-    tally
+    Some(tally)
 }

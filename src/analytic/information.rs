@@ -132,7 +132,7 @@ impl DesignInformation {
         };
         // Block sizes are replaced per count, so any count builds the same layout.
         let at = design.trials.first().copied().unwrap_or(2);
-        let mut specs = condition_specs(design, &plan.observer(), at);
+        let mut specs = condition_specs(design, plan.observer(), at);
         specs.iter_mut().for_each(|s| s.lapse = None);
         let quantities = reported_quantities(&specs);
         let model = ObservationModel::new(specs).map_err(model_err)?;

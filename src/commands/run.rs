@@ -73,13 +73,14 @@ pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<Stri
     let summaries = evaluate::run_plan(plan, run.options, progress)?;
     // With [animals] the targets are judged at group level (the effort split), not for
     // one idealised animal.
-    let searches =
-        if plan.targets().any(&plan.hypotheses()) && !run.options.exact && plan.animals().is_none()
-        {
-            crate::search::search_plan(plan, progress)?
-        } else {
-            Vec::new()
-        };
+    let searches = if plan.targets().any(plan.hypotheses())
+        && !run.options.exact
+        && plan.animals().is_none()
+    {
+        crate::search::search_plan(plan, progress)?
+    } else {
+        Vec::new()
+    };
     let groups = match (&plan.animals(), run.options.exact) {
         (Some(_), false) => Some(crate::groups::run_groups(plan, progress)?),
         _ => None,

@@ -6,8 +6,10 @@
 pub mod goals;
 pub mod model;
 pub mod quantities;
+mod route;
 mod split;
 
+pub use route::Route;
 pub use split::{Split, split_trials};
 
 use serde::Serialize;

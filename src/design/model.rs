@@ -117,7 +117,7 @@ pub fn condition_specs(design: &Design, observer: &Observer, trials: u32) -> Vec
 }
 
 /// The lapse process of the model: see [`LapseSpec::guess`].
-fn lapse(l: LapseSpec, categories: usize, boundary: usize) -> Lapse {
+pub fn lapse(l: LapseSpec, categories: usize, boundary: usize) -> Lapse {
     Lapse {
         rate: l.rate,
         guess: (0..categories)

@@ -6,10 +6,12 @@
 //! beyond the contrasts it is handed. Printing stays out: progress goes to a callback the
 //! command line turns into a bar.
 
-pub mod cells_kernel;
 pub mod contrast;
+pub mod general_fit;
 pub mod parallel;
 pub mod rating_kernel;
+pub mod sampler;
+pub mod scenario_kernel;
 pub mod summary;
 pub mod tally;
 pub mod yesno_kernel;

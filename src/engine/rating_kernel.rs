@@ -1,27 +1,22 @@
-//! Rating and graded-response scenarios (one condition, full record): multinomial category
-//! counts per stimulus class, the plan's correction, the degenerate-table rule, then the
-//! allocation-free unequal-variance fit of `fit::rating`.
+//! The rating fast path (one condition, full record): the plan's correction, the
+//! degenerate-table rule, then the allocation-free unequal-variance fit of `fit::rating`.
+//!
+//! The counts come from the scenario's [`super::sampler::TableSampler`], like every route's.
 
-use super::parallel::Kernel;
 use super::tally::{EstimateTally, Outcome, QuantityTally};
-use crate::design::{Condition, RatingScale, Split};
+use crate::design::{Condition, RatingScale};
 use crate::fit::rating::{
-    FitOptions, FitStatus, MAX_CATEGORIES, ParamsError, RatingParams, RatingTable,
-    apply_correction, degeneracy, fit, measures,
+    FitOptions, FitStatus, MAX_CATEGORIES, RatingTable, apply_correction, degeneracy, fit, measures,
 };
 use crate::model::{Observer, normal};
-use crate::simulate::{ReplicateRng, multinomial_into};
 use crate::vocab::Quantity;
 use crate::vocab::RateCorrection;
 
-/// Precomputed category probabilities and settings for one rating scenario.
+/// Settings of the rating fit for one scenario.
 #[derive(Debug, Clone)]
-pub struct RatingKernel {
+pub struct RatingEstimator {
     categories: usize,
     boundary: usize,
-    absent_p: [f64; MAX_CATEGORIES],
-    present_p: [f64; MAX_CATEGORIES],
-    split: Split,
     correction: RateCorrection,
     options: FitOptions,
     template: Vec<QuantityTally>,
@@ -49,53 +44,55 @@ pub fn rating_truths(
     out
 }
 
-impl RatingKernel {
+impl RatingEstimator {
+    /// The fit of `scale` for `condition` of `observer` (its σ is the truth the σ estimate
+    /// is scored against).
     pub fn new(
         scale: &RatingScale,
         condition: &Condition,
         observer: &Observer,
-        split: Split,
         correction: RateCorrection,
         z_crit: f64,
-    ) -> Result<Self, ParamsError> {
-        let k = scale.categories;
-        // The animal's σ generates the data even when the analysis holds σ at 1.
-        let sigma = observer.sigma;
-        // Absolute criteria: k_j = c_j + d′/2, the scale shifted to the condition's criterion.
-        let shift = condition.criterion - scale.criteria[scale.boundary - 1];
-        let absolute: Vec<f64> = scale
-            .criteria
-            .iter()
-            .map(|c| c + shift + condition.d_prime / 2.0)
-            .collect();
-        let params = RatingParams::new(condition.d_prime, sigma, &absolute)?;
-        let (mut absent_p, mut present_p) = params.cell_probabilities();
-        if let Some(l) = observer.lapse {
-            l.mix(&mut absent_p[..k], scale.boundary);
-            l.mix(&mut present_p[..k], scale.boundary);
-        }
+    ) -> Self {
         let template = rating_truths(
             condition.d_prime,
             condition.criterion,
-            sigma,
+            observer.sigma,
             scale.fix_sigma,
         )
         .into_iter()
         .map(|(q, t)| QuantityTally::new(q, t, z_crit))
         .collect();
-        Ok(Self {
-            categories: k,
+        Self {
+            categories: scale.categories,
             boundary: scale.boundary,
-            absent_p,
-            present_p,
-            split,
             correction,
             options: FitOptions {
                 fix_sigma: scale.fix_sigma,
                 ..FitOptions::default()
             },
             template,
-        })
+        }
+    }
+
+    /// An empty tally of the reported quantities.
+    pub fn tally(&self) -> EstimateTally {
+        EstimateTally::new(self.template.clone())
+    }
+
+    /// Fits the table of counts `absent`, `present` (K cells each) and records it.
+    pub fn record_counts(&self, absent: &[u64], present: &[u64], tally: &mut EstimateTally) {
+        let k = self.categories;
+        let mut af = [0.0; MAX_CATEGORIES];
+        let mut pf = [0.0; MAX_CATEGORIES];
+        for j in 0..k {
+            af[j] = absent[j] as f64;
+            pf[j] = present[j] as f64;
+        }
+        match RatingTable::new(&af[..k], &pf[..k]) {
+            Ok(table) => self.record(&table, tally),
+            Err(_) => tally.push_unfitted(Outcome::Degenerate, true, 1.0),
+        }
     }
 
     /// Fits one table and records it.
@@ -131,45 +128,5 @@ impl RatingKernel {
         push(m.d_a);
         push(m.a_z);
         tally.push_fit(&values[..n], extreme, 1.0);
-    }
-}
-
-impl Kernel for RatingKernel {
-    type Tally = EstimateTally;
-
-    fn tally(&self) -> EstimateTally {
-        EstimateTally::new(self.template.clone())
-    }
-
-    fn replicate(&self, rng: &mut ReplicateRng, tally: &mut EstimateTally) {
-        let k = self.categories;
-        let mut a = [0u64; MAX_CATEGORIES];
-        let mut p = [0u64; MAX_CATEGORIES];
-        multinomial_into(
-            rng,
-            u64::from(self.split.absent),
-            &self.absent_p[..k],
-            &mut a[..k],
-        );
-        multinomial_into(
-            rng,
-            u64::from(self.split.present),
-            &self.present_p[..k],
-            &mut p[..k],
-        );
-        let mut af = [0.0; MAX_CATEGORIES];
-        let mut pf = [0.0; MAX_CATEGORIES];
-        for j in 0..k {
-            af[j] = a[j] as f64;
-            pf[j] = p[j] as f64;
-        }
-        match RatingTable::new(&af[..k], &pf[..k]) {
-            Ok(table) => self.record(&table, tally),
-            Err(_) => tally.push_unfitted(Outcome::Degenerate, true, 1.0),
-        }
-    }
-
-    fn merge(&self, into: &mut EstimateTally, other: EstimateTally) {
-        into.merge(other);
     }
 }

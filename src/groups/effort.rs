@@ -211,7 +211,7 @@ pub fn effort_split(
         ));
     }
     let design = setup.design;
-    let Some(approximation) = Approximation::new(design, &plan.observer(), setup.population) else {
+    let Some(approximation) = Approximation::new(design, plan.observer(), setup.population) else {
         return Ok(Err(
             "no effort split: the design's expected information could not be computed".into(),
         ));

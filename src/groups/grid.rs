@@ -86,13 +86,12 @@ pub fn run_point(
     let correction = plan.study().rate_correction;
     let condition = &design.conditions[0];
     if !design.is_single_table() {
-        let path =
-            CellsAnimals::new(design, &plan.observer(), trials, correction).map_err(|e| {
-                GroupError::Model {
-                    design: design.name.clone(),
-                    message: e.to_string(),
-                }
-            })?;
+        let path = CellsAnimals::new(design, plan.observer(), trials, correction).map_err(|e| {
+            GroupError::Model {
+                design: design.name.clone(),
+                message: e.to_string(),
+            }
+        })?;
         return Ok(run_path(
             path, setup, animals, trials, replicates, seed, progress,
         ));
@@ -100,11 +99,11 @@ pub fn run_point(
     let split = split_trials(trials, condition.presence);
     Ok(match &design.response {
         Response::YesNo => {
-            let path = YesNoAnimals::new(&plan.observer(), condition, split, correction);
+            let path = YesNoAnimals::new(plan.observer(), condition, split, correction);
             run_path(path, setup, animals, trials, replicates, seed, progress)
         }
         Response::Rating(scale) => {
-            let path = RatingAnimals::new(scale, condition, &plan.observer(), split, correction);
+            let path = RatingAnimals::new(scale, condition, plan.observer(), split, correction);
             run_path(path, setup, animals, trials, replicates, seed, progress)
         }
     })

@@ -27,7 +27,7 @@ pub struct AsymptoticPoint {
 
 /// The analysis model of a design at `trials` (lapses are not part of the fit).
 pub fn analysis_model(plan: &Plan, design: &Design, trials: u32) -> Option<ObservationModel> {
-    let mut specs = condition_specs(design, &plan.observer(), trials);
+    let mut specs = condition_specs(design, plan.observer(), trials);
     specs.iter_mut().for_each(|s| s.lapse = None);
     ObservationModel::new(specs).ok()
 }

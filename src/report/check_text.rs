@@ -14,7 +14,7 @@ pub fn render(path: &Path, plan: &Plan) -> String {
         path.display(),
         plan.study().title
     );
-    let o = &plan.observer();
+    let o = plan.observer();
     let _ = writeln!(
         out,
         "observer: d′ = {}, c = {}, σ = {}; {} experiments per scenario, seed {}, {:.0}% intervals, {} correction",

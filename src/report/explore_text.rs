@@ -28,7 +28,7 @@ const FLAT_CORR: f64 = 0.005;
 /// The whole `explore` report as text.
 pub fn render(plan: &Plan, scans: &[DesignScan]) -> String {
     let mut out = String::new();
-    let o = &plan.observer();
+    let o = plan.observer();
     let _ = writeln!(out, "vigil explore — {}", plan.study().title);
     let _ = writeln!(
         out,

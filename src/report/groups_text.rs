@@ -40,7 +40,7 @@ pub fn render_section(plan: &Plan, report: &GroupReport) -> String {
 }
 
 fn header(out: &mut String, plan: &Plan, r: &GroupReport) {
-    let o = &plan.observer();
+    let o = plan.observer();
     let p = &r.population;
     let mut line = format!(
         "Population: d′ = {:.2} (between-animal SD {:.2}), c = {:+.2} (SD {:.2}), correlation of an animal's d′ and c {:+.2}",

@@ -54,7 +54,7 @@ fn render_designs(plan: &Plan, summaries: &[ScenarioSummary]) -> String {
 }
 
 fn header(out: &mut String, plan: &Plan, summaries: &[ScenarioSummary]) {
-    let o = &plan.observer();
+    let o = plan.observer();
     let r = o.rates();
     let lean = if o.criterion > 0.0 {
         "conservative"
