@@ -43,3 +43,34 @@ pub fn stderr(out: &Output) -> String {
 pub fn stdout(out: &Output) -> String {
     String::from_utf8_lossy(&out.stdout).into_owned()
 }
+
+/// The repository's `plans/` folder.
+pub fn plans_dir() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("plans")
+}
+
+/// The file stems of every bundled plan (`plans/*.toml`), sorted.
+pub fn bundled_plan_names() -> Vec<String> {
+    let mut names: Vec<String> = std::fs::read_dir(plans_dir())
+        .expect("plans/ is readable")
+        .map(|e| e.expect("plans/ entry").path())
+        .filter(|p| p.extension().is_some_and(|x| x == "toml"))
+        .map(|p| p.file_stem().unwrap().to_string_lossy().into_owned())
+        .collect();
+    names.sort();
+    names
+}
+
+/// A temporary folder holding a copy of `plans/`, so commands can name plans by the same
+/// relative paths as in the README (`plans/NAME.toml`) and write output files without
+/// touching the repository.
+pub fn workspace_with_plans() -> tempfile::TempDir {
+    let dir = tempfile::tempdir().unwrap();
+    let plans = dir.path().join("plans");
+    std::fs::create_dir(&plans).unwrap();
+    for name in bundled_plan_names() {
+        let file = format!("{name}.toml");
+        std::fs::copy(plans_dir().join(&file), plans.join(&file)).unwrap();
+    }
+    dir
+}
