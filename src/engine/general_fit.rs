@@ -9,7 +9,7 @@
 
 use super::contrast::Contrast;
 use super::sampler::TableSampler;
-use super::tally::{EstimateTally, Outcome, QuantityTally, TestTally};
+use super::tally::{DatasetOutcome, EstimateTally, QuantityTally, TestTally};
 use crate::cells::coarsening::BlockKind;
 use crate::cells::error::SpecError;
 use crate::cells::information::precision;
@@ -177,11 +177,11 @@ impl GeneralEstimator {
         let fitted = match fitted {
             Ok(f) => f,
             Err(Unfitted::Degenerate) => {
-                tally.push_unfitted(Outcome::Degenerate, extreme, 1.0);
+                tally.push_unfitted(DatasetOutcome::Degenerate, extreme, 1.0);
                 return None;
             }
             Err(Unfitted::NotConverged) => {
-                tally.push_unfitted(Outcome::NotConverged, extreme, 1.0);
+                tally.push_unfitted(DatasetOutcome::NotConverged, extreme, 1.0);
                 return None;
             }
         };
@@ -194,7 +194,7 @@ impl GeneralEstimator {
                 &fitted.result.observed_information,
             ),
         ) else {
-            tally.push_unfitted(Outcome::Degenerate, extreme, 1.0);
+            tally.push_unfitted(DatasetOutcome::Degenerate, extreme, 1.0);
             return None;
         };
         let mut values = Vec::with_capacity(self.slots.len());
@@ -214,7 +214,7 @@ impl GeneralEstimator {
             .iter()
             .any(|(e, s)| !(e.is_finite() && s.is_finite()))
         {
-            tally.push_unfitted(Outcome::Degenerate, extreme, 1.0);
+            tally.push_unfitted(DatasetOutcome::Degenerate, extreme, 1.0);
             return None;
         }
         tally.push_fit(&values, extreme, 1.0);

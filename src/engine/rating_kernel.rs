@@ -3,7 +3,7 @@
 //!
 //! The counts come from the scenario's [`super::sampler::TableSampler`], like every route's.
 
-use super::tally::{EstimateTally, Outcome, QuantityTally};
+use super::tally::{DatasetOutcome, EstimateTally, QuantityTally};
 use crate::design::{Condition, RatingScale};
 use crate::fit::rating::{
     FitOptions, FitStatus, MAX_CATEGORIES, RatingTable, apply_correction, degeneracy, fit, measures,
@@ -91,7 +91,7 @@ impl RatingEstimator {
         }
         match RatingTable::new(&af[..k], &pf[..k]) {
             Ok(table) => self.record(&table, tally),
-            Err(_) => tally.push_unfitted(Outcome::Degenerate, true, 1.0),
+            Err(_) => tally.push_unfitted(DatasetOutcome::Degenerate, true, 1.0),
         }
     }
 
@@ -100,18 +100,18 @@ impl RatingEstimator {
         let k = self.categories;
         let extreme = table.absent()[..k].contains(&0.0) || table.present()[..k].contains(&0.0);
         let Ok(corrected) = apply_correction(table, self.correction) else {
-            return tally.push_unfitted(Outcome::Degenerate, extreme, 1.0);
+            return tally.push_unfitted(DatasetOutcome::Degenerate, extreme, 1.0);
         };
         if degeneracy(&corrected, self.options.fix_sigma).is_some() {
-            return tally.push_unfitted(Outcome::Degenerate, extreme, 1.0);
+            return tally.push_unfitted(DatasetOutcome::Degenerate, extreme, 1.0);
         }
         let fitted = match fit(&corrected, &self.options) {
             Ok(f) if f.status == FitStatus::Converged => f,
-            Ok(_) => return tally.push_unfitted(Outcome::NotConverged, extreme, 1.0),
-            Err(_) => return tally.push_unfitted(Outcome::Degenerate, extreme, 1.0),
+            Ok(_) => return tally.push_unfitted(DatasetOutcome::NotConverged, extreme, 1.0),
+            Err(_) => return tally.push_unfitted(DatasetOutcome::Degenerate, extreme, 1.0),
         };
         let Ok(m) = measures(&fitted, self.boundary) else {
-            return tally.push_unfitted(Outcome::NotConverged, extreme, 1.0);
+            return tally.push_unfitted(DatasetOutcome::NotConverged, extreme, 1.0);
         };
         let mut values = [(0.0, 0.0); 6];
         let mut n = 0;

@@ -120,7 +120,7 @@ pub struct EstimateTally {
 
 /// How a dataset ended.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Outcome {
+pub enum DatasetOutcome {
     Fitted,
     Degenerate,
     NotConverged,
@@ -140,7 +140,7 @@ impl EstimateTally {
     /// `quantities`; the first two must be d′ and c.
     #[inline]
     pub fn push_fit(&mut self, values: &[(f64, f64)], extreme: bool, w: f64) {
-        self.count(Outcome::Fitted, extreme, w);
+        self.count(DatasetOutcome::Fitted, extreme, w);
         for (q, &(est, se)) in self.quantities.iter_mut().zip(values) {
             q.push(est, se, w);
         }
@@ -162,21 +162,21 @@ impl EstimateTally {
 
     /// Records a dataset that gave no usable fit.
     #[inline]
-    pub fn push_unfitted(&mut self, outcome: Outcome, extreme: bool, w: f64) {
+    pub fn push_unfitted(&mut self, outcome: DatasetOutcome, extreme: bool, w: f64) {
         self.count(outcome, extreme, w);
     }
 
     #[inline]
-    fn count(&mut self, outcome: Outcome, extreme: bool, w: f64) {
+    fn count(&mut self, outcome: DatasetOutcome, extreme: bool, w: f64) {
         let d = &mut self.datasets;
         d.total += w;
         if extreme {
             d.extreme += w;
         }
         match outcome {
-            Outcome::Fitted => d.used += w,
-            Outcome::Degenerate => d.degenerate += w,
-            Outcome::NotConverged => d.not_converged += w,
+            DatasetOutcome::Fitted => d.used += w,
+            DatasetOutcome::Degenerate => d.degenerate += w,
+            DatasetOutcome::NotConverged => d.not_converged += w,
         }
     }
 

@@ -3,7 +3,7 @@
 //!
 //! The counts come from the scenario's [`super::sampler::TableSampler`], like every route's.
 
-use super::tally::{EstimateTally, Outcome, QuantityTally};
+use super::tally::{DatasetOutcome, EstimateTally, QuantityTally};
 use crate::fit::{YesNoFit, ZTable};
 use crate::vocab::{Quantity, RateCorrection};
 
@@ -55,7 +55,7 @@ impl YesNoEstimator {
                 ];
                 tally.push_fit(&values, extreme, w);
             }
-            _ => tally.push_unfitted(Outcome::Degenerate, extreme, w),
+            _ => tally.push_unfitted(DatasetOutcome::Degenerate, extreme, w),
         }
     }
 }

@@ -15,7 +15,7 @@ pub mod observer;
 pub mod payoffs;
 pub mod scan;
 
-pub use observer::{IdealObserver, Outcome};
+pub use observer::{IdealObserver, PayoffOutcome};
 pub use payoffs::Payoffs;
 pub use scan::{ScanRow, log_spaced, scan_payoff_ratios};
 

@@ -5,7 +5,7 @@
 use super::format::number;
 use super::ideal_scan_text::{balance_ratio, scan_reading, scan_table};
 use super::style::{new_table, right_align};
-use crate::model::ideal::{IdealObserver, Outcome, ScanRow};
+use crate::model::ideal::{IdealObserver, PayoffOutcome, ScanRow};
 use serde::Serialize;
 use std::fmt::Write;
 
@@ -24,7 +24,7 @@ pub struct IdealFigures {
     /// β_opt = [(1 − p)/p]·(V_CR + C_FA)/(V_H + C_M).
     pub optimal_beta: f64,
     /// The observer at c_opt = ln β_opt / d′.
-    pub optimal: Outcome,
+    pub optimal: PayoffOutcome,
     /// The observer at f·c_opt, when a fraction was given.
     pub partial: Option<PartialAdjustment>,
     /// The optimum over a range of payoff ratios, when asked.
@@ -37,7 +37,7 @@ pub struct PartialAdjustment {
     /// f in [0, 1].
     pub fraction: f64,
     /// The observer at c = f·c_opt.
-    pub outcome: Outcome,
+    pub outcome: PayoffOutcome,
     /// Expected payoff per trial at c_opt minus that at f·c_opt (≥ 0).
     pub payoff_lost: f64,
 }
@@ -136,7 +136,7 @@ pub fn render(fig: &IdealFigures) -> String {
 }
 
 /// One table cell from an outcome and d′.
-type Cell = fn(&Outcome, f64) -> String;
+type Cell = fn(&PayoffOutcome, f64) -> String;
 
 fn outcome_table(out: &mut String, fig: &IdealFigures) {
     let partial_header = fig
@@ -239,7 +239,7 @@ struct Document<'a> {
     payoff_ratio: f64,
     prior_odds_absent: f64,
     optimal_beta: f64,
-    optimal: &'a Outcome,
+    optimal: &'a PayoffOutcome,
     partial: Option<&'a PartialAdjustment>,
     scan: Option<ScanOut<'a>>,
     reading: String,

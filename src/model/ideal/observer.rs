@@ -46,7 +46,7 @@ pub struct IdealObserver {
 
 /// What an observer does at one criterion, with the expected payoff per trial.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
-pub struct Outcome {
+pub struct PayoffOutcome {
     /// The criterion c (from the midpoint; positive = conservative).
     pub criterion: f64,
     /// H = Φ(d′/2 − c).
@@ -113,7 +113,7 @@ impl IdealObserver {
     }
 
     /// Rates, false-alarm-to-miss ratio and expected payoff at any finite criterion.
-    pub fn outcome(&self, criterion: f64) -> Result<Outcome, IdealError> {
+    pub fn outcome(&self, criterion: f64) -> Result<PayoffOutcome, IdealError> {
         if criterion.is_finite() {
             Ok(self.outcome_at(criterion))
         } else {
@@ -122,15 +122,15 @@ impl IdealObserver {
     }
 
     /// The outcome at c_opt.
-    pub fn optimal_outcome(&self) -> Outcome {
+    pub fn optimal_outcome(&self) -> PayoffOutcome {
         self.outcome_at(self.optimal_criterion())
     }
 
     /// The outcome at a criterion already known to be finite.
-    fn outcome_at(&self, criterion: f64) -> Outcome {
+    fn outcome_at(&self, criterion: f64) -> PayoffOutcome {
         let r = rates_at(self.d_prime, criterion);
         let p = self.presence_rate;
-        Outcome {
+        PayoffOutcome {
             criterion,
             hit_rate: r.hit,
             miss_rate: r.miss,
