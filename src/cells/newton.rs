@@ -11,6 +11,7 @@
 use nalgebra::{DMatrix, DVector};
 
 use crate::cells::cell_probabilities::Workspace;
+use crate::cells::degeneracy::model_degeneracy;
 use crate::cells::error::InputError;
 use crate::cells::identifiability::{RANK_TOLERANCE, scaled_eigen};
 use crate::cells::information::expected_information;
@@ -39,6 +40,9 @@ pub enum StopReason {
     /// Stationary (or stalled) where the data cannot pin θ down: the information is
     /// rank-deficient (a ridge) or flat in some entry (an estimate running off to infinity).
     NotIdentified,
+    /// Not attempted: a condition's table has no maximum inside the parameter space, by the
+    /// rule of [`crate::cells::degeneracy`] that every route shares.
+    Degenerate,
 }
 
 /// Where the fit starts.
@@ -86,7 +90,9 @@ pub struct Fit {
     pub observed_information: DMatrix<f64>,
 }
 
-/// Fits θ by maximum likelihood from `start`.
+/// Fits θ by maximum likelihood from `start`. A model whose counts are degenerate by
+/// [`model_degeneracy`] is not iterated: the result stops as [`StopReason::Degenerate`] at the
+/// start, with lnL and the information evaluated there.
 pub fn fit(
     model: &ObservationModel,
     counts: &Counts,
@@ -100,8 +106,24 @@ pub fn fit(
     };
     model.check_theta(&theta0)?;
     counts.check_shape(model)?;
+    if model_degeneracy(model, counts.cells()).is_some() {
+        return Ok(unfitted(model, counts, theta0, StopReason::Degenerate));
+    }
     let free = vec![true; model.dim()];
     Ok(maximise(model, counts, theta0, &free, options))
+}
+
+/// A result that stops where it starts, for a fit that is not attempted.
+fn unfitted(model: &ObservationModel, counts: &Counts, theta: Vec<f64>, stop: StopReason) -> Fit {
+    let d = derivatives_with(&mut Workspace::default(), model, counts, &theta);
+    Fit {
+        max_abs_gradient: d.gradient.iter().fold(0.0, |m: f64, g| m.max(g.abs())),
+        log_likelihood: d.value,
+        observed_information: -d.hessian,
+        theta,
+        stop,
+        iterations: 0,
+    }
 }
 
 /// Maximises lnL over the entries marked `free`, holding the others at `theta0`.

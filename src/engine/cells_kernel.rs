@@ -229,7 +229,7 @@ impl Kernel for CellsKernel {
         };
         match result.stop {
             StopReason::Converged => {}
-            StopReason::NotIdentified => {
+            StopReason::NotIdentified | StopReason::Degenerate => {
                 return tally.push_unfitted(Outcome::Degenerate, extreme, 1.0);
             }
             StopReason::IterationLimit | StopReason::NumericalFailure => {
