@@ -8,6 +8,8 @@ use vigil::cells::observation_model::ObservationModel;
 use vigil::cells::spec::{ConditionSpec, Record};
 use vigil::model::normal;
 
+mod common;
+
 fn yes_no(present: u64, absent: u64, d: f64, c: f64) -> ObservationModel {
     let rec = Record::Full { present, absent };
     ObservationModel::new(vec![ConditionSpec::yes_no("lab", rec, d, c, 0.5)]).unwrap()
@@ -132,12 +134,7 @@ fn fit_reports_iterations_and_never_panics_on_extreme_counts() {
 /// of Var d′ leaves room for the ~1e-12 relative error of z and φ.
 #[test]
 fn golden_gourevitch_galanter() {
-    let path = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/golden/gg_variance.json");
-    let text = std::fs::read_to_string(path)
-        .unwrap_or_else(|e| panic!("golden file {path} is committed and readable: {e}"));
-    let doc: serde_json::Value = serde_json::from_str(&text).expect("golden file is JSON");
-    let cases = doc["cases"].as_array().expect("golden file has cases");
-    assert!(!cases.is_empty(), "{path} has no cases");
+    let cases = common::golden_cases("gg_variance.json");
     let num = |v: &serde_json::Value| v.as_f64().expect("number");
     for case in cases {
         let (h, f) = (num(&case["H"]), num(&case["F"]));

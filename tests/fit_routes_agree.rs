@@ -225,14 +225,10 @@ fn verdict(a: &Option<Answer>) -> &'static str {
     if a.is_some() { "fitted" } else { "degenerate" }
 }
 
+mod common;
+
 fn golden(name: &str) -> Vec<Value> {
-    let path = format!("{}/tests/golden/{name}", env!("CARGO_MANIFEST_DIR"));
-    let text = std::fs::read_to_string(&path)
-        .unwrap_or_else(|e| panic!("golden file {path} is committed and readable: {e}"));
-    let doc: Value = serde_json::from_str(&text).expect("golden file is JSON");
-    let cases = doc["cases"].as_array().expect("a cases array").clone();
-    assert!(!cases.is_empty(), "{path} has no cases");
-    cases
+    common::golden_cases(name)
 }
 
 fn counts(v: &Value) -> Vec<f64> {

@@ -22,16 +22,10 @@
 use serde_json::Value;
 use vigil::fit::rating::{FitOptions, FitStatus, Param, RatingTable, fit, measures};
 
-const GOLDEN_DIR: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/golden");
+mod common;
 
 fn load(name: &str) -> Vec<Value> {
-    let path = format!("{GOLDEN_DIR}/{name}");
-    let text = std::fs::read_to_string(&path)
-        .unwrap_or_else(|e| panic!("golden file {path} is missing or unreadable: {e}"));
-    let json: Value = serde_json::from_str(&text).expect("golden file is valid JSON");
-    let cases = json["cases"].as_array().expect("a cases array").clone();
-    assert!(!cases.is_empty(), "golden file {path} has no cases");
-    cases
+    common::golden_cases(name)
 }
 
 /// lnL tolerance (see the module documentation).

@@ -2,7 +2,6 @@
 //! tests/golden/generate.py with the versions in tests/golden/requirements.txt).
 
 use serde_json::Value;
-use std::path::Path;
 use vigil::analytic::exact;
 use vigil::engine::summary::{Method, summarise};
 use vigil::engine::yesno_kernel::YesNoKernel;
@@ -12,12 +11,10 @@ use vigil::infer::wilson_interval;
 use vigil::model::{Observer, YesNoMeasures, normal};
 use vigil::plan::Scenario;
 
+mod common;
+
 fn golden(name: &str) -> Vec<Value> {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("tests/golden")
-        .join(name);
-    let doc: Value = serde_json::from_str(&std::fs::read_to_string(path).unwrap()).unwrap();
-    doc["cases"].as_array().unwrap().clone()
+    common::golden_cases(name)
 }
 
 fn f(v: &Value, key: &str) -> f64 {
