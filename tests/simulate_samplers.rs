@@ -86,7 +86,7 @@ fn multinomial_margins_and_covariances_follow_the_multinomial() {
     let n = 30u64;
     let mut rng = replicate_rng(99, 1, 2);
     let mut out = [0u64; 4];
-    let mut columns: Vec<Vec<f64>> = vec![Vec::with_capacity(DRAWS); 4];
+    let mut columns: Vec<Vec<f64>> = (0..4).map(|_| Vec::with_capacity(DRAWS)).collect();
     for _ in 0..DRAWS {
         multinomial_into(&mut rng, n, &probs, &mut out);
         assert_eq!(out.iter().sum::<u64>(), n);
