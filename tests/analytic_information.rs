@@ -13,6 +13,8 @@ use vigil::plan::Plan;
 use vigil::report::identification_text::verdict_sentence;
 use vigil::vocab::Quantity;
 
+mod common;
+
 /// A one-design plan (invented numbers) with extra design keys.
 fn plan(d_prime: f64, criterion: f64, presence: f64, trials: u32, extra: &str) -> Plan {
     let text = format!(
@@ -70,15 +72,9 @@ fn full_record_matches_gourevitch_galanter() {
 /// difference.
 #[test]
 fn known_base_rate_matches_golden_error_totals() {
-    let path = concat!(
-        env!("CARGO_MANIFEST_DIR"),
-        "/tests/golden/error_totals_information.json"
-    );
-    let doc: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(path).unwrap()).unwrap();
     let num = |v: &serde_json::Value| v.as_f64().unwrap();
     let near = |a: f64, b: f64| (a - b).abs() <= 1e-6 * b.abs().max(1e-3);
-    for case in doc["cases"].as_array().unwrap() {
+    for case in &common::golden_cases("error_totals_information.json") {
         let n = case["N"].as_u64().unwrap() as u32;
         let extra = "record = \"error-totals\"\nbase_rate = \"known\"";
         let p = plan(

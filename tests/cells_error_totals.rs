@@ -7,6 +7,8 @@ use vigil::cells::observation_model::ObservationModel;
 use vigil::cells::spec::{BaseRateKnowledge, ConditionSpec, Record};
 use vigil::model::normal::{cdf, pdf};
 
+mod common;
+
 fn model(knowledge: BaseRateKnowledge, n: u64, d: f64, c: f64, pi: f64) -> ObservationModel {
     let rec = Record::ErrorTotals {
         encounters: n,
@@ -65,14 +67,7 @@ fn known_base_rate_information_matches_hand_delta_method() {
 /// differences (step 1e-6), hence the 1e-6 relative tolerance.
 #[test]
 fn golden_error_totals_information() {
-    let path = concat!(
-        env!("CARGO_MANIFEST_DIR"),
-        "/tests/golden/error_totals_information.json"
-    );
-    let text = std::fs::read_to_string(path).expect("golden file is committed");
-    let doc: serde_json::Value = serde_json::from_str(&text).expect("golden file is JSON");
-    let cases = doc["cases"].as_array().expect("golden file has cases");
-    assert!(!cases.is_empty());
+    let cases = common::golden_cases("error_totals_information.json");
     let num = |v: &serde_json::Value| v.as_f64().expect("number");
     let near = |a: f64, b: f64| (a - b).abs() <= 1e-6 * b.abs().max(1e-3);
     for case in cases {

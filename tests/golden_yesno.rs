@@ -2,7 +2,6 @@
 //! tests/golden/generate.py with the versions in tests/golden/requirements.txt).
 
 use serde_json::Value;
-use std::path::Path;
 use vigil::analytic::exact;
 use vigil::engine::scenario_kernel::ScenarioKernel;
 use vigil::engine::summary::{Method, summarise};
@@ -14,12 +13,10 @@ use vigil::plan::Scenario;
 use vigil::vocab::Quantity;
 use vigil::vocab::RateCorrection;
 
+mod common;
+
 fn golden(name: &str) -> Vec<Value> {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("tests/golden")
-        .join(name);
-    let doc: Value = serde_json::from_str(&std::fs::read_to_string(path).unwrap()).unwrap();
-    doc["cases"].as_array().unwrap().clone()
+    common::golden_cases(name)
 }
 
 fn f(v: &Value, key: &str) -> f64 {

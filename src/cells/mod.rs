@@ -11,11 +11,13 @@
 //! One job per file: [`spec`] (what a caller says about a condition), [`parameter_map`]
 //! (the free vector θ: names, sharing, fixed values), [`full_table`] (P(category | class)
 //! and derivatives), [`coarsening`] (records → blocks of cells), [`observation_model`],
-//! [`cell_probabilities`], [`likelihood`], [`newton`] (the fit), [`information`],
+//! [`cell_probabilities`], [`likelihood`], [`degeneracy`] (the one rule for tables without an
+//! interior maximum, shared with the fast paths), [`newton`] (the fit), [`information`],
 //! [`identifiability`], [`profile`], [`error`].
 
 pub mod cell_probabilities;
 pub mod coarsening;
+pub mod degeneracy;
 pub mod error;
 pub mod full_table;
 pub mod identifiability;

@@ -11,6 +11,7 @@
 use nalgebra::{DMatrix, DVector};
 
 use crate::cells::cell_probabilities::Workspace;
+use crate::cells::degeneracy::model_degeneracy;
 use crate::cells::error::InputError;
 use crate::cells::identifiability::{RANK_TOLERANCE, scaled_eigen};
 use crate::cells::information::expected_information;
@@ -39,6 +40,9 @@ pub enum StopReason {
     /// Stationary (or stalled) where the data cannot pin θ down: the information is
     /// rank-deficient (a ridge) or flat in some entry (an estimate running off to infinity).
     NotIdentified,
+    /// Not attempted: a condition's table has no maximum inside the parameter space, by the
+    /// rule of [`crate::cells::degeneracy`] that every route shares.
+    Degenerate,
 }
 
 /// Where the fit starts.
@@ -57,6 +61,9 @@ pub enum Start {
 pub struct FitOptions {
     pub max_iterations: usize,
     /// Stop when the Newton decrement gᵀ(−H)⁻¹g (twice the predicted gain in lnL) is below this.
+    /// The decrement is the squared length of the remaining Newton step in standard errors, so
+    /// the default 1e-16 stops within 1e-8 SE of the maximum: the fast paths' rule, which lets
+    /// the routes be tested equal to 1e-7.
     pub tolerance: f64,
     /// Largest change of any θ entry in one step (keeps early steps out of the far tails).
     pub max_step: f64,
@@ -66,7 +73,7 @@ impl Default for FitOptions {
     fn default() -> Self {
         FitOptions {
             max_iterations: 100,
-            tolerance: 1e-10,
+            tolerance: 1e-16,
             max_step: 3.0,
         }
     }
@@ -86,7 +93,9 @@ pub struct Fit {
     pub observed_information: DMatrix<f64>,
 }
 
-/// Fits θ by maximum likelihood from `start`.
+/// Fits θ by maximum likelihood from `start`. A model whose counts are degenerate by
+/// [`model_degeneracy`] is not iterated: the result stops as [`StopReason::Degenerate`] at the
+/// start, with lnL and the information evaluated there.
 pub fn fit(
     model: &ObservationModel,
     counts: &Counts,
@@ -100,8 +109,24 @@ pub fn fit(
     };
     model.check_theta(&theta0)?;
     counts.check_shape(model)?;
+    if model_degeneracy(model, counts.cells()).is_some() {
+        return Ok(unfitted(model, counts, theta0, StopReason::Degenerate));
+    }
     let free = vec![true; model.dim()];
     Ok(maximise(model, counts, theta0, &free, options))
+}
+
+/// A result that stops where it starts, for a fit that is not attempted.
+fn unfitted(model: &ObservationModel, counts: &Counts, theta: Vec<f64>, stop: StopReason) -> Fit {
+    let d = derivatives_with(&mut Workspace::default(), model, counts, &theta);
+    Fit {
+        max_abs_gradient: d.gradient.iter().fold(0.0, |m: f64, g| m.max(g.abs())),
+        log_likelihood: d.value,
+        observed_information: -d.hessian,
+        theta,
+        stop,
+        iterations: 0,
+    }
 }
 
 /// Maximises lnL over the entries marked `free`, holding the others at `theta0`.
@@ -217,7 +242,14 @@ fn damped_step(a: &DMatrix<f64>, g: &DVector<f64>, start: f64) -> Option<(DVecto
     None
 }
 
-/// Backtracking: halve the step until lnL rises by at least 10⁻⁴ of the predicted first-order gain.
+/// Accuracy of the computed lnL relative to its size, allowed for in the line search: a sum of
+/// n·ln p with an ulp-accurate Φ is good to ~1e-14 of its size. Without it the last Newton
+/// steps, whose gain is below lnL's last digits, would be refused and the fit would stall
+/// short of the tolerance (the rating fast path has the same allowance).
+const LN_L_NOISE: f64 = 1e-12;
+
+/// Backtracking: halve the step until lnL rises by at least 10⁻⁴ of the predicted first-order
+/// gain, less lnL's rounding noise.
 #[allow(clippy::too_many_arguments)]
 fn line_search(
     ws: &mut Workspace,
@@ -230,6 +262,7 @@ fn line_search(
     f0: f64,
 ) -> Option<Vec<f64>> {
     let slope = g.dot(delta);
+    let slack = LN_L_NOISE * (1.0 + f0.abs());
     let mut alpha = 1.0;
     let mut trial = theta.to_vec();
     for _ in 0..40 {
@@ -237,7 +270,7 @@ fn line_search(
             trial[i] = theta[i] + alpha * delta[k];
         }
         let f = value_with(ws, model, counts, &trial);
-        if f.is_finite() && f >= f0 + 1e-4 * alpha * slope {
+        if f.is_finite() && f >= f0 + 1e-4 * alpha * slope - slack {
             return Some(trial);
         }
         alpha *= 0.5;

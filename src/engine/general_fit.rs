@@ -119,7 +119,9 @@ impl GeneralFit {
         };
         match result.stop {
             StopReason::Converged => {}
-            StopReason::NotIdentified => return (Err(Unfitted::Degenerate), extreme),
+            StopReason::NotIdentified | StopReason::Degenerate => {
+                return (Err(Unfitted::Degenerate), extreme);
+            }
             StopReason::IterationLimit | StopReason::NumericalFailure => {
                 return (Err(Unfitted::NotConverged), extreme);
             }

@@ -2,6 +2,23 @@
 //!
 //! The choice is the plan's, named, and reported: every summary says how many datasets
 //! needed it.
+//!
+//! # One definition of the standard error on every route
+//!
+//! A correction changes the table, and every route then fits the corrected table as if it
+//! were the data: the estimates are its maximum-likelihood estimates and the SEs come from
+//! the inverse observed information of that same table at its maximum, pseudo-counts
+//! included. For the yes/no closed form this is the Gourevitch & Galanter (1967) variance
+//! p(1 − p)/(N φ(z(p))²) with p the corrected rate and N the corrected row total
+//! ([`RateCorrection::fitted_total`]): n + 1 under log-linear (each of the two cells gained
+//! ½), n under half-n (the half count is moved within the row) and under none. The rating
+//! fast path and the general Newton fit invert the observed information of the corrected
+//! table, so all three give the same number for the same data. Two reasons for this choice
+//! over "corrected rate, raw n": it is the exact maximum-likelihood answer for the table
+//! actually fitted, so the routes can be tested equal to rounding; and the Wald intervals
+//! it gives cover nearer the nominal level (log-linear, d′ = 1.8, c = 0, 11 present and 19
+//! absent trials, exact enumeration: 95% intervals for c cover 96.7% with n + 1 against
+//! 98.4% with n, for d′ 96.5% against 97.2%).
 
 use crate::vocab::RateCorrection;
 
@@ -22,6 +39,17 @@ impl RateCorrection {
 }
 
 impl RateCorrection {
+    /// Total of a corrected yes/no row of `n` trials: n + 1 under log-linear (½ added to each
+    /// of the two cells), n otherwise (half-n moves a half count within the row). This is the
+    /// N of the standard error (see the module documentation); with K categories log-linear
+    /// adds K/2, which the rating and general fits see in their corrected tables.
+    pub fn fitted_total(self, n: u32) -> f64 {
+        match self {
+            Self::LogLinear => f64::from(n) + 1.0,
+            Self::HalfN | Self::None => f64::from(n),
+        }
+    }
+
     /// Applies the rule to one row of a count table (one stimulus class over its response
     /// categories), in place, and says whether the row had an empty cell. With two
     /// categories this is exactly [`RateCorrection::rate`]:
@@ -115,6 +143,24 @@ mod tests {
         let mut tiny = [0.0, 0.0, 0.0, 1.0];
         assert!(RateCorrection::HalfN.apply_to_row(&mut tiny).is_err());
         assert_eq!(tiny, [0.0, 0.0, 0.0, 1.0]);
+    }
+
+    // The corrected rows' totals, as `apply_to_row` leaves them, are the totals the closed
+    // form uses for its SEs.
+    #[test]
+    fn fitted_total_is_the_corrected_row_total() {
+        for rule in [
+            RateCorrection::LogLinear,
+            RateCorrection::HalfN,
+            RateCorrection::None,
+        ] {
+            for (x, n) in [(0u32, 20u32), (20, 20), (7, 20), (1, 1)] {
+                let mut row = [f64::from(n - x), f64::from(x)];
+                if rule.apply_to_row(&mut row).is_ok() {
+                    assert_eq!(row[0] + row[1], rule.fitted_total(n), "{rule:?} {x}/{n}");
+                }
+            }
+        }
     }
 
     #[test]

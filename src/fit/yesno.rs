@@ -8,7 +8,9 @@ use crate::model::{YesNoMeasures, normal};
 use crate::vocab::RateCorrection;
 
 /// z of one rate and the Gourevitch & Galanter (1967) variance of that z:
-/// Var z(p̂) ≈ p(1−p) / (n φ(z)²), evaluated at the (corrected) estimated rate.
+/// Var z(p̂) ≈ p(1−p) / (N φ(z)²), evaluated at the (corrected) estimated rate with N the
+/// corrected row total ([`RateCorrection::fitted_total`]; the one SE definition of every
+/// route, see [`super::correction`]).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct ZEntry {
     pub z: f64,
@@ -16,7 +18,9 @@ pub struct ZEntry {
 }
 
 /// z and its variance for every count 0..=n of one stimulus class; `None` marks counts the
-/// correction leaves degenerate.
+/// correction leaves degenerate. With two categories and σ held, a table is degenerate by the
+/// shared rule of `cells::degeneracy` exactly when a rate is 0 or 1, which is when an entry
+/// is `None` (only under the `none` correction).
 #[derive(Debug, Clone)]
 pub struct ZTable {
     entries: Vec<Option<ZEntry>>,
@@ -45,7 +49,7 @@ fn z_entry(x: u32, n: u32, correction: RateCorrection) -> Option<ZEntry> {
     let rate = correction.rate(x, n)?;
     Some(ZEntry {
         z: normal::z(rate)?,
-        var: z_variance(rate, f64::from(n))?,
+        var: z_variance(rate, correction.fitted_total(n))?,
     })
 }
 
@@ -134,13 +138,24 @@ mod tests {
         }
     }
 
-    // Gourevitch & Galanter (1967) variance, references.md check values [library]:
-    // H = .8, F = .2, 50/50 → Var(d′) = 0.081655, Var(c) = 0.020414.
+    // Gourevitch & Galanter (1967, Psychometrika 32:25–33; formula from memory) with SciPy 1.17
+    // check values: H = .8, F = .2, 50/50 → Var(d′) = 0.081655, Var(c) = 0.020414.
     #[test]
     fn gourevitch_galanter_variance() {
         let fit = fit_yes_no(40, 50, 10, 50, RateCorrection::None).unwrap();
         assert!((fit.se_d_prime.powi(2) - 0.081655).abs() < 1e-6);
         assert!((fit.se_criterion.powi(2) - 0.020414).abs() < 1e-6);
+    }
+
+    // Log-linear: 40/50 becomes 40.5/51, fitted with N = 51. By hand: p(1 − p)/(N φ(z(p))²)
+    // for each row, Var d′ the sum, Var c a quarter of it (Gourevitch & Galanter 1967).
+    #[test]
+    fn log_linear_variance_uses_the_corrected_total() {
+        let fit = fit_yes_no(40, 50, 10, 50, RateCorrection::LogLinear).unwrap();
+        let var = |p: f64| p * (1.0 - p) / (51.0 * normal::pdf(normal::z(p).unwrap()).powi(2));
+        let var_d = var(40.5 / 51.0) + var(10.5 / 51.0);
+        assert!((fit.se_d_prime.powi(2) - var_d).abs() < 1e-15);
+        assert!((fit.se_criterion.powi(2) - var_d / 4.0).abs() < 1e-15);
     }
 
     #[test]

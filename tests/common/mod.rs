@@ -74,3 +74,65 @@ pub fn workspace_with_plans() -> tempfile::TempDir {
     }
     dir
 }
+
+/// The `cases` of a golden file in tests/golden; panics (so the test fails) when the file is
+/// missing, is not JSON, or holds no cases — a check must never pass on absent data.
+pub fn golden_cases(name: &str) -> Vec<serde_json::Value> {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/golden")
+        .join(name);
+    let text = std::fs::read_to_string(&path).unwrap_or_else(|e| {
+        panic!(
+            "golden file {} is missing or unreadable: {e}",
+            path.display()
+        )
+    });
+    let doc: serde_json::Value = serde_json::from_str(&text)
+        .unwrap_or_else(|e| panic!("golden file {} is not JSON: {e}", path.display()));
+    let cases = doc["cases"]
+        .as_array()
+        .unwrap_or_else(|| panic!("golden file {} has no cases array", path.display()))
+        .clone();
+    assert!(
+        !cases.is_empty(),
+        "golden file {} has an empty cases array",
+        path.display()
+    );
+    cases
+}
+
+/// Pearson's chi-square goodness-of-fit test of observed counts against expected
+/// probabilities (Pearson 1900; common practice): neighbouring outcomes are pooled from the
+/// low end until each bin expects at least 5 draws (the last bin takes any remainder), and
+/// the statistic is compared with the 0.999 quantile of χ² with bins − 1 degrees of freedom
+/// (statrs 0.19). With a fixed seed the test is deterministic; a correct sampler fails it for
+/// one seed in a thousand. Returns (statistic, critical value, degrees of freedom).
+pub fn chi_square(observed: &[u64], probabilities: &[f64]) -> (f64, f64, usize) {
+    use statrs::distribution::{ChiSquared, ContinuousCDF};
+    assert_eq!(observed.len(), probabilities.len());
+    let n = observed.iter().sum::<u64>() as f64;
+    let mut bins: Vec<(f64, f64)> = Vec::new();
+    let (mut obs, mut exp) = (0.0, 0.0);
+    for (&o, &p) in observed.iter().zip(probabilities) {
+        obs += o as f64;
+        exp += n * p;
+        if exp >= 5.0 {
+            bins.push((obs, exp));
+            obs = 0.0;
+            exp = 0.0;
+        }
+    }
+    match bins.last_mut() {
+        Some(last) => {
+            last.0 += obs;
+            last.1 += exp;
+        }
+        None => bins.push((obs, exp)),
+    }
+    let statistic = bins.iter().map(|(o, e)| (o - e).powi(2) / e).sum();
+    let df = bins.len() - 1;
+    let critical = ChiSquared::new(df.max(1) as f64)
+        .expect("positive degrees of freedom")
+        .inverse_cdf(0.999);
+    (statistic, critical, df)
+}

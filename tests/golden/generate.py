@@ -18,6 +18,7 @@ from golden_support import (
     assert_close,
     assert_printed,
     corrected_rates,
+    fitted_total,
     gg_variances,
     meta,
     write_json,
@@ -151,7 +152,8 @@ def _enumerate_case(h_true, f_true, n_s, n_n, rule):
     d_hat = norm.ppf(hk) - norm.ppf(fk)
     c_hat = -(norm.ppf(hk) + norm.ppf(fk)) / 2.0
     mean_d, mean_c = float(w @ d_hat), float(w @ c_hat)
-    se_d = np.sqrt(gg_variances(hk, fk, n_s, n_n)["var_d"])
+    # The SE of the table as fitted: the corrected row totals (n + 1 under loglinear).
+    se_d = np.sqrt(gg_variances(hk, fk, fitted_total(n_s, rule), fitted_total(n_n, rule))["var_d"])
     d_true = norm.ppf(h_true) - norm.ppf(f_true)
     c_true = -(norm.ppf(h_true) + norm.ppf(f_true)) / 2.0
     return {
@@ -198,8 +200,10 @@ def exact_enumeration():
                  "non-degenerate outcome",
              "coverage_d_prime": "P(|d_hat - d_true| <= 1.959963984540054 * SE), SE = "
                                  "sqrt of the Gourevitch-Galanter var_d at the (corrected) "
-                                 "estimated rates with the actual n_present, n_absent; "
-                                 "conditional for rule none",
+                                 "estimated rates with the corrected row totals (n + 1 "
+                                 "under loglinear, n otherwise: the inverse observed "
+                                 "information of the table as fitted); conditional for "
+                                 "rule none",
              "coverage_c": "same with SE(c) = SE(d')/2 and c_true",
              "p_degenerate": "probability mass dropped: P(any raw rate 0 or 1) for rule "
                              "none, 0 for the corrections",

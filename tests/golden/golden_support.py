@@ -127,6 +127,16 @@ def corrected_rates(counts, n, rule):
     raise ValueError(f"unknown correction rule {rule!r}")
 
 
+def fitted_total(n, rule):
+    """Row total of a corrected yes/no row of n trials: n + 1 under loglinear (0.5 added to
+    each of the two cells), n under half_n (the half count moves within the row) and none."""
+    if rule == "loglinear":
+        return n + 1.0
+    if rule in ("half_n", "none"):
+        return float(n)
+    raise ValueError(f"unknown correction rule {rule!r}")
+
+
 def gg_variances(hit_rate, fa_rate, n_present, n_absent):
     """Gourevitch & Galanter (1967) asymptotic variances; works on arrays.
 

@@ -41,6 +41,13 @@ UNEQUAL_VARIANCE_DATA = [  # invented; present trials more spread out than absen
     # Mirror-image counts: by symmetry the MLE has sigma = 1 and k_j + k_{K-j} = mu.
     ("uv_k6_symmetric", [30, 25, 20, 12, 8, 5], [5, 8, 12, 20, 25, 30]),
     ("uv_k6_zero_cell", [25, 30, 20, 15, 10, 0], [2, 5, 10, 18, 30, 35]),
+    # Only one criterion has both cumulative rates strictly inside (0, 1), yet the maximum
+    # is interior: every absent count sits below the top category, no present count below
+    # category 2.
+    ("uv_k5_one_interior_criterion", [9, 6, 5, 4, 0], [0, 0, 3, 5, 8]),
+    # Rows that overlap in the middle two categories only; interior maximum, sigma = 1 by
+    # the mirror symmetry of the counts.
+    ("uv_k4_overlap_middle", [3, 3, 3, 0], [0, 3, 3, 3]),
 ]
 
 

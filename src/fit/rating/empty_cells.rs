@@ -2,11 +2,13 @@
 //! (corrected or not) has no finite maximum-likelihood estimate.
 //!
 //! An empty cell is harmless in itself, but some patterns of empty cells push the
-//! likelihood's maximum to infinity (a criterion at ±∞, two criteria merging, a zROC line
-//! with no finite points). Rather than let the solver wander off, such tables are named as
-//! degenerate before fitting, and the report counts them.
+//! likelihood's maximum to the boundary of the parameter space (a criterion at ±∞, two
+//! criteria merging, μ running off, σ → 0 or ∞). Rather than let the solver wander off, such
+//! tables are named as degenerate before fitting, by the rule of `cells::degeneracy` that the
+//! general fit uses too, and the report counts them.
 
 use super::table::{RatingTable, Row};
+use crate::cells::degeneracy::{Degeneracy, Variance, table_degeneracy};
 use crate::fit::correction::RowTooSmall;
 use crate::vocab::RateCorrection;
 
@@ -45,54 +47,18 @@ pub fn apply_correction(
     Ok(out)
 }
 
-/// Why a table has no finite maximum-likelihood estimate.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
-pub enum DegenerateReason {
-    /// No response at all in this category (0 in both rows): the likelihood grows as the two
-    /// criteria around it merge (or, for an end category, as its criterion goes to ±∞), so
-    /// the maximum lies on the edge of the parameter space.
-    #[error("category {category} is empty in both rows")]
-    EmptyCategory { category: usize },
-    /// Too few criteria where both cumulative rates lie strictly between 0 and 1. Only such a
-    /// criterion gives a finite point (z(F_j), z(H_j)) on the zROC; the model's zROC is a
-    /// line, and a line is pinned down by two finite points (one when the slope is fixed at
-    /// 1 by σ = 1). With fewer, the likelihood keeps rising along a ray on which μ, σ or a
-    /// criterion runs off to infinity.
-    #[error(
-        "only {interior} criteria have both cumulative rates strictly between 0 and 1; {needed} needed"
-    )]
-    TooFewInteriorCriteria { interior: usize, needed: usize },
-}
-
 /// Says whether a (possibly corrected) table is degenerate under the model with σ free
-/// (`fix_sigma = false`) or σ = 1 (`fix_sigma = true`); `None` means it may be fitted.
-///
-/// The rule: degenerate when a category column is empty in both rows, or when fewer than 2
-/// criteria (1 when σ is fixed) have both cumulative rates F_j = P(response ≥ j | absent)
-/// and H_j = P(response ≥ j | present) strictly between 0 and 1. With K = 2 and σ free the
-/// table is always degenerate: one zROC point cannot fix both μ and σ. The rule is a cheap
-/// necessary condition for a finite estimate; rarer separation patterns that pass it show up
-/// as solver failures, never as converged fits.
-pub fn degeneracy(table: &RatingTable, fix_sigma: bool) -> Option<DegenerateReason> {
-    let (absent, present) = (table.absent(), table.present());
-    if let Some(category) = (0..table.categories()).find(|&j| absent[j] == 0.0 && present[j] == 0.0)
-    {
-        return Some(DegenerateReason::EmptyCategory { category });
-    }
-    // Criterion j (1-based) is interior for a row when the row has counts both below and at
-    // or above category j; running sums from the bottom give "below" for every j at once.
-    let (total_a, total_p) = (table.absent_total(), table.present_total());
-    let (mut below_a, mut below_p) = (0.0, 0.0);
-    let mut interior = 0;
-    for j in 1..table.categories() {
-        below_a += absent[j - 1];
-        below_p += present[j - 1];
-        if below_a > 0.0 && below_a < total_a && below_p > 0.0 && below_p < total_p {
-            interior += 1;
-        }
-    }
-    let needed = if fix_sigma { 1 } else { 2 };
-    (interior < needed).then_some(DegenerateReason::TooFewInteriorCriteria { interior, needed })
+/// (`fix_sigma = false`) or σ = 1 (`fix_sigma = true`); `None` means a finite maximum exists
+/// and the table may be fitted. This is the one rule every route shares, proved in
+/// [`crate::cells::degeneracy`]: the table is degenerate exactly when the supremum of lnL
+/// lies on the boundary of the parameter space.
+pub fn degeneracy(table: &RatingTable, fix_sigma: bool) -> Option<Degeneracy> {
+    let variance = if fix_sigma {
+        Variance::Held
+    } else {
+        Variance::Free
+    };
+    table_degeneracy(table.absent(), table.present(), variance)
 }
 
 #[cfg(test)]
@@ -156,51 +122,22 @@ mod tests {
     }
 
     #[test]
-    fn empty_column_is_degenerate() {
+    fn delegates_to_the_shared_rule() {
         let t = table(&[5.0, 0.0, 3.0, 2.0], &[1.0, 0.0, 4.0, 5.0]);
-        assert_eq!(
-            degeneracy(&t, false),
-            Some(DegenerateReason::EmptyCategory { category: 1 })
-        );
-        assert_eq!(
-            degeneracy(&t, true),
-            Some(DegenerateReason::EmptyCategory { category: 1 })
-        );
-    }
-
-    #[test]
-    fn counts_interior_criteria() {
-        // Yes/no with H = 1: no interior criterion.
+        let empty = Some(Degeneracy::EmptyCategory { category: 1 });
+        assert_eq!(degeneracy(&t, false), empty);
+        assert_eq!(degeneracy(&t, true), empty);
+        // Yes/no with H = 1: separated, for σ held.
         let t = table(&[8.0, 2.0], &[0.0, 10.0]);
         assert_eq!(
             degeneracy(&t, true),
-            Some(DegenerateReason::TooFewInteriorCriteria {
-                interior: 0,
-                needed: 1
-            })
+            Some(Degeneracy::PresentAboveAbsent { at: 1 })
         );
-        // Yes/no with both rates interior: fine with σ fixed, never with σ free.
-        let t = table(&[8.0, 2.0], &[3.0, 7.0]);
-        assert_eq!(degeneracy(&t, true), None);
-        assert_eq!(
-            degeneracy(&t, false),
-            Some(DegenerateReason::TooFewInteriorCriteria {
-                interior: 1,
-                needed: 2
-            })
-        );
-        // Perfect separation in a four-category table: no criterion is interior in both rows.
-        let t = table(&[5.0, 5.0, 0.0, 0.0], &[0.0, 0.0, 5.0, 5.0]);
-        assert!(matches!(
-            degeneracy(&t, true),
-            Some(DegenerateReason::TooFewInteriorCriteria { interior: 0, .. })
-        ));
-        // Only the middle criterion is interior: enough for σ = 1, not for σ free.
-        let t = table(&[3.0, 3.0, 3.0, 0.0], &[0.0, 3.0, 3.0, 3.0]);
-        assert_eq!(degeneracy(&t, true), None);
-        assert!(degeneracy(&t, false).is_some());
-        let t = table(&[4.0, 3.0, 2.0, 1.0], &[1.0, 2.0, 3.0, 4.0]);
+        // A table with an interior maximum although only one criterion has both cumulative
+        // rates strictly between 0 and 1 (the rule before this one refused it).
+        let t = table(&[9.0, 6.0, 5.0, 4.0, 0.0], &[0.0, 0.0, 3.0, 5.0, 8.0]);
         assert_eq!(degeneracy(&t, false), None);
+        assert_eq!(degeneracy(&t, true), None);
     }
 
     #[test]

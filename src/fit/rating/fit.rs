@@ -5,13 +5,14 @@
 //! observed information −∂²lnL/∂η∂ηᵀ in the natural parameters η = (μ, σ, k_1, …, k_{K−1})
 //! to give their asymptotic covariance.
 
-use super::empty_cells::{DegenerateReason, degeneracy};
+use super::empty_cells::degeneracy;
 use super::linalg::{cholesky_in_place, inverse};
 use super::newton::maximise;
 use super::params::{Layout, RatingParams};
 use super::start::zroc_start;
 use super::table::RatingTable;
 use super::{MAX_PARAMS, Matrix};
+use crate::cells::degeneracy::Degeneracy;
 
 /// Solver settings.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -54,7 +55,7 @@ pub enum FitStatus {
 pub enum FitError {
     /// The table has no finite maximum-likelihood estimate.
     #[error("degenerate table: {0}")]
-    Degenerate(#[from] DegenerateReason),
+    Degenerate(#[from] Degeneracy),
     /// The starting values have a different number of categories than the table.
     #[error("the start has {start} categories but the table has {table}")]
     StartMismatch { start: usize, table: usize },

@@ -241,20 +241,21 @@ fn degenerate_tables_are_refused() {
     let empty_column = RatingTable::new(&[5.0, 0.0, 5.0], &[2.0, 0.0, 8.0]).unwrap();
     assert_eq!(
         fit(&empty_column, &FitOptions::default()),
-        Err(FitError::Degenerate(DegenerateReason::EmptyCategory {
+        Err(FitError::Degenerate(Degeneracy::EmptyCategory {
             category: 1
         }))
     );
     let perfect = yes_no(20.0, 20.0, 3.0, 20.0);
     assert!(matches!(
         fit(&perfect, &fixed()),
-        Err(FitError::Degenerate(
-            DegenerateReason::TooFewInteriorCriteria { .. }
-        ))
+        Err(FitError::Degenerate(Degeneracy::PresentAboveAbsent { .. }))
     ));
     // σ free needs at least three categories.
     let two = yes_no(15.0, 20.0, 3.0, 20.0);
-    assert!(fit(&two, &FitOptions::default()).is_err());
+    assert_eq!(
+        fit(&two, &FitOptions::default()),
+        Err(FitError::Degenerate(Degeneracy::SigmaWithTwoCategories))
+    );
     assert!(fit(&two, &fixed()).is_ok());
 }
 

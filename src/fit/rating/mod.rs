@@ -7,7 +7,8 @@
 //!
 //! The pieces, one job per file:
 //! - [`table`]: the count table and its validation;
-//! - [`empty_cells`]: the named empty-cell corrections and the degenerate-table rule;
+//! - [`empty_cells`]: the named empty-cell corrections, and the degenerate-table rule shared
+//!   with the general fit (`cells::degeneracy`);
 //! - `cells`: cell probabilities of one row, accurate in both tails;
 //! - [`params`]: the natural parameters, the unconstrained θ used by the solver, the chain rule
 //!   between them, and the model's cell probabilities;
@@ -35,7 +36,8 @@ pub mod params;
 pub mod start;
 pub mod table;
 
-pub use empty_cells::{CorrectionError, DegenerateReason, apply_correction, degeneracy};
+pub use crate::cells::degeneracy::Degeneracy;
+pub use empty_cells::{CorrectionError, apply_correction, degeneracy};
 pub use fit::{Covariance, FitError, FitOptions, FitStatus, Param, RatingFit, fit, fit_from};
 pub use measures::{Estimate, MeasureError, RatingMeasures, measures};
 pub use params::{ParamsError, RatingParams};
