@@ -51,6 +51,8 @@ pub enum InformationError {
          and a full record at least one present and one absent trial in every condition"
     )]
     Trials { design: String, trials: u32 },
+    #[error("the plan has no design number {index} (designs are counted from 0)")]
+    NoSuchDesign { index: usize },
 }
 
 /// Asymptotic SE of one reported quantity (same quantities, labels and order as the Monte
