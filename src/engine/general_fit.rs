@@ -12,14 +12,13 @@ use super::sampler::TableSampler;
 use super::tally::{DatasetOutcome, EstimateTally, QuantityTally, TestTally};
 use crate::cells::coarsening::BlockKind;
 use crate::cells::error::SpecError;
-use crate::cells::information::precision;
+use crate::cells::information::{Precision, precision};
 use crate::cells::likelihood::Counts;
 use crate::cells::newton::{Fit, FitOptions, Start, StopReason, fit};
 use crate::cells::observation_model::ObservationModel;
 use crate::design::quantities::reported_quantities;
 use crate::infer::{likelihood_ratio_test, signed_root_test, wald_test};
 use crate::vocab::{Quantity, RateCorrection, Sided};
-use nalgebra::DMatrix;
 
 /// Which natural quantity of which condition a tally slot holds.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -49,7 +48,8 @@ pub struct GeneralFit {
 pub struct FittedDataset {
     pub counts: Counts,
     pub result: Fit,
-    pub covariance: DMatrix<f64>,
+    /// Covariance and natural SEs from the observed information at θ̂.
+    pub precision: Precision,
 }
 
 /// Why a dataset has no usable general fit.
@@ -127,10 +127,10 @@ impl GeneralFit {
             }
         }
         match precision(&self.model, &result.theta, &result.observed_information) {
-            Ok(Some(prec)) => (
+            Ok(Some(precision)) => (
                 Ok(FittedDataset {
                     counts,
-                    covariance: prec.covariance.clone(),
+                    precision,
                     result,
                 }),
                 extreme,
@@ -309,7 +309,7 @@ impl HypothesisTests {
                     &fitted.counts,
                     &fitted.result.theta,
                     fitted.result.log_likelihood,
-                    &fitted.covariance,
+                    &fitted.precision.covariance,
                 )
             })
             .collect();
