@@ -11,7 +11,6 @@ mod raw;
 mod scenario;
 mod toml_error;
 mod validate;
-mod validate_goals;
 
 pub use error::PlanError;
 pub use keys::{TABLE_KEYS, allowed};

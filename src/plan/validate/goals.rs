@@ -1,14 +1,14 @@
 //! Checks of what the plan wants shown: hypotheses, targets, animals and budget.
 
-use super::PlanError;
-use super::Study;
-use super::raw::{RawAnimals, RawBudget, RawHypothesis, RawPlan, RawTargets};
-use super::validate::{Ctx, open_unit};
+use super::{Ctx, open_unit};
 use crate::design::goals::{Animals, Budget, Hypothesis, Targets, TestKind};
 use crate::design::{Design, Response, SharedParameter};
 use crate::engine::Quantity;
 use crate::infer::Sided;
 use crate::model::ideal::Payoffs;
+use crate::plan::PlanError;
+use crate::plan::Study;
+use crate::plan::raw::{RawAnimals, RawBudget, RawHypothesis, RawPlan, RawTargets};
 
 /// The validated goals of a plan.
 pub(super) struct Goals {
