@@ -3,39 +3,7 @@
 
 mod common;
 
-use common::{plan_text, stderr, vigil};
-
-/// Writes `text` as bad.toml, runs `vigil run bad.toml --csv out.csv --json out.json`
-/// and checks the contract; returns the message.
-fn rejected(text: &str, line: usize, key: &str) -> String {
-    let dir = tempfile::tempdir().unwrap();
-    std::fs::write(dir.path().join("bad.toml"), text).unwrap();
-    let out = vigil(
-        dir.path(),
-        &[
-            "run", "bad.toml", "--quiet", "--csv", "out.csv", "--json", "out.json",
-        ],
-    );
-    let msg = stderr(&out);
-    assert_eq!(out.status.code(), Some(2), "exit code for: {msg}");
-    assert!(!msg.contains("panicked"), "panic: {msg}");
-    assert!(msg.contains("bad.toml"), "file not named: {msg}");
-    assert!(
-        msg.contains(&format!("line {line}")),
-        "line {line} not named: {msg}"
-    );
-    assert!(
-        msg.contains(&format!("`{key}`")),
-        "key {key} not named: {msg}"
-    );
-    assert!(msg.contains("allowed:"), "no allowed values: {msg}");
-    let left: Vec<_> = std::fs::read_dir(dir.path())
-        .unwrap()
-        .map(|e| e.unwrap().file_name())
-        .collect();
-    assert_eq!(left.len(), 1, "files left behind: {left:?}");
-    msg
-}
+use common::{plan_text, rejected, stderr, vigil};
 
 fn example() -> String {
     plan_text("playback-yes-no.toml")

@@ -23,6 +23,8 @@ pub const TABLE_KEYS: &[(&str, &[&str])] = &[
             "experiments",
             "confidence",
             "rate_correction",
+            "alpha",
+            "max_trials",
         ],
     ),
     (

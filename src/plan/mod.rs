@@ -9,6 +9,7 @@ mod keys;
 mod locate;
 mod raw;
 mod scenario;
+mod text;
 mod toml_error;
 mod validate;
 
@@ -81,9 +82,11 @@ impl Plan {
 
     /// Parses and validates plan text; `path` is used only in messages.
     pub fn from_str(path: &Path, text: &str) -> Result<Plan, PlanError> {
-        let raw: raw::RawPlan =
-            toml::from_str(text).map_err(|e| toml_error::translate(path, text, &e))?;
-        validate::validate(path, text, raw)
+        // Byte offsets in `prepared` are those of `text` without its byte-order mark.
+        let prepared = text::prepare(text);
+        let raw: raw::RawPlan = toml::from_str(&prepared)
+            .map_err(|e| toml_error::translate(path, &prepared, text, &e))?;
+        validate::validate(path, &prepared, raw)
     }
 
     /// Every (design, trial count) pair, in plan order.
