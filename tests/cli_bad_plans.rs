@@ -229,3 +229,29 @@ fn sharing_a_parameter_the_design_lacks() {
     let msg = rejected(&text, line_of(&text, "shared ="), "design[2].shared");
     assert!(msg.contains("σ is fixed"), "{msg}");
 }
+
+fn colony() -> String {
+    plan_text("predator-model-colony.toml")
+}
+
+#[test]
+fn duplicate_animal_counts() {
+    let text = colony().replace("counts = [8, 12, 16, 24]", "counts = [3, 3]");
+    let msg = rejected(&text, line_of(&text, "counts = [3, 3]"), "animals.counts");
+    assert!(msg.contains("listed twice"), "{msg}");
+}
+
+#[test]
+fn duplicate_trial_counts() {
+    let text = replace_first(
+        &example(),
+        "trials = [20, 40, 80, 160]",
+        "trials = [20, 40, 20]",
+    );
+    let msg = rejected(
+        &text,
+        line_of(&text, "trials = [20, 40, 20]"),
+        "design[1].trials",
+    );
+    assert!(msg.contains("listed twice"), "{msg}");
+}

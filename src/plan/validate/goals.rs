@@ -251,10 +251,13 @@ fn animals(ctx: &Ctx, a: &RawAnimals, designs: &[Design]) -> Result<Animals, Pla
                 format!("{} animals is outside 2 to 100000", c.get_ref()),
             ));
         }
-        counts.push(*c.get_ref() as u32);
+        let n = *c.get_ref() as u32;
+        if counts.contains(&n) {
+            return Err(ctx.at(c, "counts", format!("{n} animals is listed twice")));
+        }
+        counts.push(n);
     }
     counts.sort_unstable();
-    counts.dedup();
     let sd = |v: &Option<toml::Spanned<f64>>, key: &str| -> Result<f64, PlanError> {
         match v {
             None => Ok(0.0),
