@@ -110,27 +110,51 @@ fn word_at(line: &str, col: usize) -> Option<String> {
     (!w.is_empty()).then(|| w.to_string())
 }
 
-/// The nearest `[table]` or `[[array]]` header above `limit`, with array entries numbered.
+/// The nearest `[table]` or `[[array]]` header above `limit`, with array entries numbered;
+/// a nested array counts within its parent entry (`design[2].condition[1]`).
 fn table_header_before(source: &str, limit: usize) -> String {
     let mut current = String::new();
+    // Entries seen so far of each array, keyed by its resolved path (`design[2].condition`).
     let mut counts: Vec<(String, usize)> = Vec::new();
+    let resolve = |name: &str, counts: &[(String, usize)]| {
+        let mut path = String::new();
+        for part in name.split('.').map(str::trim) {
+            if !path.is_empty() {
+                path.push('.');
+            }
+            path.push_str(part);
+            if let Some((_, n)) = counts.iter().find(|(k, _)| *k == path) {
+                path = format!("{path}[{n}]");
+            }
+        }
+        path
+    };
     for line in source[..boundary_at_or_before(source, limit)].lines() {
         let t = line.trim();
         if let Some(inner) = t.strip_prefix("[[").and_then(|s| s.split("]]").next()) {
-            let name = inner.trim().to_string();
-            let n = match counts.iter_mut().find(|(k, _)| *k == name) {
+            let inner = inner.trim();
+            let (parent, last) = match inner.rsplit_once('.') {
+                Some((p, l)) => (resolve(p, &counts), l.trim()),
+                None => (String::new(), inner),
+            };
+            let key = if parent.is_empty() {
+                last.to_string()
+            } else {
+                format!("{parent}.{last}")
+            };
+            let n = match counts.iter_mut().find(|(k, _)| *k == key) {
                 Some((_, n)) => {
                     *n += 1;
                     *n
                 }
                 None => {
-                    counts.push((name.clone(), 1));
+                    counts.push((key.clone(), 1));
                     1
                 }
             };
-            current = format!("{name}[{n}]");
+            current = format!("{key}[{n}]");
         } else if let Some(inner) = t.strip_prefix('[').and_then(|s| s.split(']').next()) {
-            current = inner.trim().to_string();
+            current = resolve(inner.trim(), &counts);
         }
     }
     current
@@ -163,6 +187,15 @@ mod tests {
         let at = SRC.find("2.0").unwrap();
         assert_eq!(key_path_at(SRC, at), "design[2].presence");
         assert_eq!(key_path_at(SRC, SRC.find("1\n").unwrap()), "study.seed");
+    }
+
+    #[test]
+    fn nested_arrays_count_within_their_parent() {
+        let src = "[[design]]\n[[design.condition]]\nname = \"a\"\n[[design]]\n[[design.condition]]\nname = \"b\"\n[[design.condition]]\nd_prime = 2\n";
+        let at = src.find("2\n").unwrap();
+        assert_eq!(key_path_at(src, at), "design[2].condition[2].d_prime");
+        let at = src.find("\"b\"").unwrap();
+        assert_eq!(key_path_at(src, at), "design[2].condition[1].name");
     }
 
     #[test]
