@@ -8,6 +8,7 @@ mod conditions;
 mod design;
 pub(super) mod goals;
 mod observer;
+mod runnable;
 mod scale;
 mod study;
 
@@ -48,6 +49,19 @@ impl Ctx<'_> {
             allowed: allowed(key).to_string(),
         }
     }
+
+    /// As [`Ctx::at`], with what is allowed spelt out for this case.
+    pub(super) fn at_allowing<T>(
+        &self,
+        value: &Spanned<T>,
+        problem: String,
+        allowed: String,
+    ) -> PlanError {
+        PlanError {
+            allowed,
+            ..self.at(value, "", problem)
+        }
+    }
 }
 
 pub(super) fn validate(path: &Path, source: &str, raw: RawPlan) -> Result<Plan, PlanError> {
@@ -60,6 +74,7 @@ pub(super) fn validate(path: &Path, source: &str, raw: RawPlan) -> Result<Plan, 
     let mut designs = Vec::new();
     for d in raw.designs.get_ref() {
         let design = design::design(&ctx, d, &spec)?;
+        runnable::runnable(&ctx, d, &design, &spec.observer)?;
         if designs.iter().any(|x: &Design| x.name == design.name) {
             return Err(ctx.at(
                 &d.name,
@@ -86,6 +101,42 @@ pub(super) fn validate(path: &Path, source: &str, raw: RawPlan) -> Result<Plan, 
         animals: goals.animals,
         budget: goals.budget,
     })
+}
+
+/// A number for a message: the shortest form that reads back as `x`, in scientific notation
+/// when plain digits would run long (1e-310, not 0.000…0001).
+pub(super) fn shown(x: f64) -> String {
+    let a = x.abs();
+    if !x.is_finite() || a == 0.0 || (1e-4..1e15).contains(&a) {
+        format!("{x}")
+    } else {
+        format!("{x:e}")
+    }
+}
+
+/// Two numbers that differ, to four significant digits unless that makes them look equal.
+pub(super) fn shown_pair(a: f64, b: f64) -> (String, String) {
+    let short = |x: f64| {
+        let s = shown(x);
+        match s.parse::<f64>() {
+            Ok(v) if v.is_finite() && v != 0.0 && (1e-4..1e15).contains(&v.abs()) => {
+                let digits = (3 - v.abs().log10().floor() as i32).max(0) as usize;
+                let r = format!("{v:.digits$}");
+                if r.contains('.') {
+                    r.trim_end_matches('0').trim_end_matches('.').to_string()
+                } else {
+                    r
+                }
+            }
+            _ => s,
+        }
+    };
+    let (sa, sb) = (short(a), short(b));
+    if sa == sb && a != b {
+        (shown(a), shown(b))
+    } else {
+        (sa, sb)
+    }
 }
 
 pub(super) fn open_unit(x: f64) -> bool {

@@ -1,6 +1,6 @@
 //! `[observer]`: the hypothesised animal, and the ideal criterion when it is "optimal".
 
-use super::Ctx;
+use super::{Ctx, shown};
 use crate::model::ideal::{IdealObserver, Payoffs};
 use crate::model::{LapseSpec, Observer};
 use crate::plan::raw::{RawCriterion, RawPlan};
@@ -71,6 +71,27 @@ pub(super) fn optimal_criterion(
     })?;
     let ideal = IdealObserver::new(d_prime, presence, payoffs)
         .map_err(|e| ctx.at(&at, "criterion", e.to_string()))?;
+    let c_opt = ideal.optimal_criterion();
+    if !c_opt.is_finite() {
+        // The payoffs and d′ pass their own checks, but ln β / d′ leaves double precision.
+        let ratio = payoffs.ratio();
+        let why = if !(ratio.is_finite() && ratio > 0.0) {
+            format!(
+                "the payoff ratio (value_correct_rejection + cost_false_alarm) / (value_hit + cost_miss) is {} in double precision",
+                shown(ratio)
+            )
+        } else {
+            format!("ln β / d′ overflows at d′ = {}", shown(d_prime))
+        };
+        return Err(ctx.at_allowing(
+            &at,
+            format!(
+                "the ideal criterion c = ln β / d′ at presence {} is {c_opt}, not a number an animal can have: {why}",
+                shown(presence)
+            ),
+            "payoffs and d′ for which c = ln β / d′ is a finite number; payoff sums value_hit + cost_miss and value_correct_rejection + cost_false_alarm below 1e300 whose ratio lies between 1e-300 and 1e300, with d′ ≥ 1e-300, always are".into(),
+        ));
+    }
     ideal
         .partial_criterion(fraction)
         .map_err(|e| ctx.at(&at, "criterion", e.to_string()))
