@@ -3,39 +3,7 @@
 
 mod common;
 
-use common::{plan_text, stderr, vigil};
-
-/// Writes `text` as bad.toml, runs `vigil run bad.toml --csv out.csv --json out.json`
-/// and checks the contract; returns the message.
-fn rejected(text: &str, line: usize, key: &str) -> String {
-    let dir = tempfile::tempdir().unwrap();
-    std::fs::write(dir.path().join("bad.toml"), text).unwrap();
-    let out = vigil(
-        dir.path(),
-        &[
-            "run", "bad.toml", "--quiet", "--csv", "out.csv", "--json", "out.json",
-        ],
-    );
-    let msg = stderr(&out);
-    assert_eq!(out.status.code(), Some(2), "exit code for: {msg}");
-    assert!(!msg.contains("panicked"), "panic: {msg}");
-    assert!(msg.contains("bad.toml"), "file not named: {msg}");
-    assert!(
-        msg.contains(&format!("line {line}")),
-        "line {line} not named: {msg}"
-    );
-    assert!(
-        msg.contains(&format!("`{key}`")),
-        "key {key} not named: {msg}"
-    );
-    assert!(msg.contains("allowed:"), "no allowed values: {msg}");
-    let left: Vec<_> = std::fs::read_dir(dir.path())
-        .unwrap()
-        .map(|e| e.unwrap().file_name())
-        .collect();
-    assert_eq!(left.len(), 1, "files left behind: {left:?}");
-    msg
-}
+use common::{plan_text, rejected, stderr, vigil};
 
 fn example() -> String {
     plan_text("playback-yes-no.toml")
@@ -260,4 +228,30 @@ fn sharing_a_parameter_the_design_lacks() {
     );
     let msg = rejected(&text, line_of(&text, "shared ="), "design[2].shared");
     assert!(msg.contains("σ is fixed"), "{msg}");
+}
+
+fn colony() -> String {
+    plan_text("predator-model-colony.toml")
+}
+
+#[test]
+fn duplicate_animal_counts() {
+    let text = colony().replace("counts = [8, 12, 16, 24]", "counts = [3, 3]");
+    let msg = rejected(&text, line_of(&text, "counts = [3, 3]"), "animals.counts");
+    assert!(msg.contains("listed twice"), "{msg}");
+}
+
+#[test]
+fn duplicate_trial_counts() {
+    let text = replace_first(
+        &example(),
+        "trials = [20, 40, 80, 160]",
+        "trials = [20, 40, 20]",
+    );
+    let msg = rejected(
+        &text,
+        line_of(&text, "trials = [20, 40, 20]"),
+        "design[1].trials",
+    );
+    assert!(msg.contains("listed twice"), "{msg}");
 }

@@ -23,6 +23,8 @@ pub const TABLE_KEYS: &[(&str, &[&str])] = &[
             "experiments",
             "confidence",
             "rate_correction",
+            "alpha",
+            "max_trials",
         ],
     ),
     (
@@ -135,7 +137,7 @@ pub fn allowed(key: &str) -> &'static str {
         }
         "max_correlation" => "the largest acceptable |r(d̂′, ĉ)|, in (0, 1]",
         "animals" => "an [animals] table with counts",
-        "counts" => "a list of whole numbers of animals ≥ 2, e.g. [6, 10, 16]",
+        "counts" => "a list of different whole numbers of animals, 2 to 100000, e.g. [6, 10, 16]",
         "sd_d_prime" => "between-animal SD of d′, ≥ 0 (default 0)",
         "sd_criterion" => "between-animal SD of the criterion, ≥ 0 (default 0)",
         "correlation" => {
@@ -174,7 +176,9 @@ pub fn allowed(key: &str) -> &'static str {
         "condition" => {
             "[[design.condition]] tables, each with a unique name and optionally presence, d_prime and criterion"
         }
-        "trials" => "a list of whole numbers ≥ 2 per condition, e.g. [20, 40, 80]",
+        "trials" => {
+            "a list of different whole numbers of trials per condition, 2 to 1000000, e.g. [20, 40, 80]"
+        }
         "scale" => {
             "an inline table, e.g. scale = { categories = 4, boundary = 2, absent_shares = [0.4, 0.3, 0.2, 0.1] }"
         }

@@ -9,9 +9,9 @@ mod keys;
 mod locate;
 mod raw;
 mod scenario;
+mod text;
 mod toml_error;
 mod validate;
-mod validate_goals;
 
 pub use error::PlanError;
 pub use keys::{TABLE_KEYS, allowed};
@@ -88,9 +88,11 @@ impl Plan {
 
     /// Parses and validates plan text; `path` is used only in messages.
     pub fn from_str(path: &Path, text: &str) -> Result<Plan, PlanError> {
-        let raw: raw::RawPlan =
-            toml::from_str(text).map_err(|e| toml_error::translate(path, text, &e))?;
-        validate::validate(path, text, raw)
+        // Byte offsets in `prepared` are those of `text` without its byte-order mark.
+        let prepared = text::prepare(text);
+        let raw: raw::RawPlan = toml::from_str(&prepared)
+            .map_err(|e| toml_error::translate(path, &prepared, text, &e))?;
+        validate::validate(path, &prepared, raw)
     }
 
     /// The file the plan came from.

@@ -1,12 +1,15 @@
 //! Translating TOML and serde messages into [`PlanError`]s a plan author can act on.
 
 use super::PlanError;
-use super::keys::allowed;
+use super::keys::{TABLE_KEYS, allowed};
 use super::locate::{key_path_of, line_of, nearest};
+use super::text::{invisible_in, line_note, visible};
 use std::path::Path;
 
-/// One clear error from a parse or type error.
-pub fn translate(path: &Path, source: &str, err: &toml::de::Error) -> PlanError {
+/// One clear error from a parse or type error. `source` is the text that was parsed (see
+/// [`super::text::prepare`]), `original` the file as written, for naming characters a
+/// reader cannot see.
+pub fn translate(path: &Path, source: &str, original: &str, err: &toml::de::Error) -> PlanError {
     let span = err.span();
     let line = span.as_ref().map(|s| line_of(source, s.start));
     let located = span
@@ -23,14 +26,18 @@ pub fn translate(path: &Path, source: &str, err: &toml::de::Error) -> PlanError 
     };
     if let Some((unknown, expected)) = parse_unknown_field(message) {
         let valid: Vec<&str> = expected.iter().map(String::as_str).collect();
-        out.key = replace_last(&located, &unknown);
-        out.problem = match nearest(&unknown, &valid) {
-            Some(s) => format!("unknown key `{unknown}`; did you mean `{s}`?"),
-            None => format!("unknown key `{unknown}`"),
+        let shown = visible(&unknown);
+        out.key = replace_last(&located, &shown);
+        let hidden = invisible_in(&unknown)
+            .map(|w| format!(" (the name {w})"))
+            .unwrap_or_default();
+        out.problem = match nearest(unknown.trim(), &valid) {
+            Some(s) => format!("unknown key `{shown}`{hidden}; did you mean `{s}`?"),
+            None => format!("unknown key `{shown}`{hidden}"),
         };
         out.allowed = format!("one of {}", quoted_list(&valid));
     } else if let Some(missing) = between(message, "missing field `", "`") {
-        out.key = join(&table_of(&located), &missing);
+        out.key = join(&table_of(&located, &missing), &missing);
         out.problem = "required key is missing".into();
         out.allowed = allowed(&missing).to_string();
     } else if message.starts_with("data did not match any variant") {
@@ -44,6 +51,11 @@ pub fn translate(path: &Path, source: &str, err: &toml::de::Error) -> PlanError 
     } else {
         out.problem = format!("not valid TOML: {message}");
         out.allowed = "TOML syntax: key = value, [table], [[array of tables]]".into();
+    }
+    let named = out.problem.contains("(U+");
+    if let Some(note) = line.and_then(|l| line_note(original, l)).filter(|_| !named) {
+        // A space TOML does not know, or a character that cannot be seen, on the line.
+        out.problem = format!("{}; {note}", out.problem);
     }
     out
 }
@@ -84,8 +96,20 @@ fn last_key(path: &str) -> String {
     last.split('[').next().unwrap_or(last).to_string()
 }
 
-fn table_of(path: &str) -> String {
-    // A span of a table header points at the table itself.
+/// The table a missing key belongs to. The span of a missing key points at its table, except
+/// that a missing top-level table (`design`) is reported at whichever table the parser
+/// stopped in: a key no table but the top level holds belongs to the top level.
+fn table_of(path: &str, missing: &str) -> String {
+    let keys_of = |table: &str| {
+        TABLE_KEYS
+            .iter()
+            .find(|(t, _)| *t == table)
+            .map_or(&[][..], |(_, k)| *k)
+    };
+    let own = keys_of(&last_key(path)).contains(&missing);
+    if !own && keys_of("").contains(&missing) {
+        return String::new();
+    }
     path.to_string()
 }
 

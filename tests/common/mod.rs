@@ -136,3 +136,45 @@ pub fn chi_square(observed: &[u64], probabilities: &[f64]) -> (f64, f64, usize) 
         .inverse_cdf(0.999);
     (statistic, critical, df)
 }
+
+/// Writes `text` as bad.toml, runs `vigil run bad.toml --csv out.csv --json out.json`
+/// and checks the contract; returns the message.
+pub fn rejected(text: &str, line: usize, key: &str) -> String {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("bad.toml"), text).unwrap();
+    let out = vigil(
+        dir.path(),
+        &[
+            "run", "bad.toml", "--quiet", "--csv", "out.csv", "--json", "out.json",
+        ],
+    );
+    let msg = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "exit code for: {msg}");
+    assert!(!msg.contains("panicked"), "panic: {msg}");
+    assert!(msg.contains("bad.toml"), "file not named: {msg}");
+    assert!(
+        msg.contains(&format!("line {line}")),
+        "line {line} not named: {msg}"
+    );
+    assert!(
+        msg.contains(&format!("`{key}`")),
+        "key {key} not named: {msg}"
+    );
+    assert!(msg.contains("allowed:"), "no allowed values: {msg}");
+    let left: Vec<_> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name())
+        .collect();
+    assert_eq!(left.len(), 1, "files left behind: {left:?}");
+    msg
+}
+
+/// Writes `text` as plan.toml and runs `vigil check plan.toml`, asserting exit 0; returns
+/// standard output.
+pub fn accepted(text: &str) -> String {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("plan.toml"), text).unwrap();
+    let out = vigil(dir.path(), &["check", "plan.toml"]);
+    assert_eq!(out.status.code(), Some(0), "rejected: {}", stderr(&out));
+    stdout(&out)
+}

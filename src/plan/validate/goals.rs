@@ -1,12 +1,12 @@
 //! Checks of what the plan wants shown: hypotheses, targets, animals and budget.
 
-use super::PlanError;
-use super::Study;
-use super::raw::{RawAnimals, RawBudget, RawHypothesis, RawPlan, RawTargets};
-use super::validate::{Ctx, open_unit};
+use super::{Ctx, open_unit};
 use crate::design::goals::{Animals, Budget, Hypothesis, Targets, TestKind};
 use crate::design::{Design, Response, SharedParameter};
 use crate::model::ideal::Payoffs;
+use crate::plan::PlanError;
+use crate::plan::Study;
+use crate::plan::raw::{RawAnimals, RawBudget, RawHypothesis, RawPlan, RawTargets};
 use crate::vocab::Quantity;
 use crate::vocab::Sided;
 
@@ -251,10 +251,13 @@ fn animals(ctx: &Ctx, a: &RawAnimals, designs: &[Design]) -> Result<Animals, Pla
                 format!("{} animals is outside 2 to 100000", c.get_ref()),
             ));
         }
-        counts.push(*c.get_ref() as u32);
+        let n = *c.get_ref() as u32;
+        if counts.contains(&n) {
+            return Err(ctx.at(c, "counts", format!("{n} animals is listed twice")));
+        }
+        counts.push(n);
     }
     counts.sort_unstable();
-    counts.dedup();
     let sd = |v: &Option<toml::Spanned<f64>>, key: &str| -> Result<f64, PlanError> {
         match v {
             None => Ok(0.0),
