@@ -255,3 +255,34 @@ fn duplicate_trial_counts() {
     );
     assert!(msg.contains("listed twice"), "{msg}");
 }
+
+/// Every run is bounded: the plan's own `experiments` and `--experiments` share one
+/// documented ceiling (10⁸), so `--experiments 18446744073709551615` is refused at once.
+#[test]
+fn experiments_beyond_the_ceiling_are_refused_both_ways() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = common::plan_text("playback-yes-no.toml");
+    std::fs::write(dir.path().join("p.toml"), &text).unwrap();
+    let out = common::vigil(
+        dir.path(),
+        &[
+            "run",
+            "p.toml",
+            "-q",
+            "--experiments",
+            "18446744073709551615",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(2), "{}", common::stderr(&out));
+    assert!(common::stderr(&out).contains("--experiments"));
+    let big = text.replace("experiments = 2000", "experiments = 200000000");
+    assert_ne!(big, text, "the plan sets experiments = 2000");
+    std::fs::write(dir.path().join("big.toml"), big).unwrap();
+    let out = common::vigil(dir.path(), &["check", "big.toml"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        common::stderr(&out).contains("100000000"),
+        "{}",
+        common::stderr(&out)
+    );
+}

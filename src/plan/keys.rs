@@ -99,7 +99,9 @@ pub fn allowed(key: &str) -> &'static str {
         "design" => "one or more [[design]] tables",
         "title" => "text in quotes, e.g. title = \"Alarm-call playback, pilot\"",
         "seed" => "a whole number from 0 to 9223372036854775807",
-        "experiments" => "a whole number of simulated experiments, at least 1 (default 2000)",
+        "experiments" => {
+            "a whole number of simulated experiments from 1 to 100000000 (default 2000)"
+        }
         "confidence" => "a number strictly between 0 and 1, e.g. 0.95 (default 0.95)",
         "rate_correction" => "\"log-linear\" (default), \"half-n\" or \"none\"",
         "d_prime" => "a number ≥ 0 (sensitivity d′)",

@@ -16,12 +16,18 @@ pub(super) fn study(ctx: &Ctx, raw: &RawPlan) -> Result<Study, PlanError> {
     }
     let experiments = match &s.experiments {
         None => DEFAULT_EXPERIMENTS,
-        Some(e) if *e.get_ref() >= 1 => *e.get_ref() as u64,
+        Some(e) if (1..=crate::plan::MAX_EXPERIMENTS as i64).contains(e.get_ref()) => {
+            *e.get_ref() as u64
+        }
         Some(e) => {
             return Err(ctx.at(
                 e,
                 "experiments",
-                format!("{} is not a positive number of experiments", e.get_ref()),
+                format!(
+                    "{} is not a number of experiments from 1 to {} (10⁸)",
+                    e.get_ref(),
+                    crate::plan::MAX_EXPERIMENTS
+                ),
             ));
         }
     };
