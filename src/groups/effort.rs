@@ -10,16 +10,17 @@
 //! 3. Best for the budget: the row with the highest simulated power of the weakest driving
 //!    test; the approximate best keeps its place unless another row beats it by more than
 //!    2 Monte Carlo SEs (the power curve is flat near its top, so noise must not pick).
-//!    Least cost: the approximate cheapest row gets more animals (+5%, at least 1, up to
-//!    [`MAX_BUMPS`] times) until the simulation confirms the targets; the answer is the
-//!    cheapest row whose simulation meets every target.
+//! 4. With targets: at every frontier trial count (the approximate least cost and the
+//!    approximate fewest animals among them), the fewest animals are searched by Monte Carlo
+//!    on common random numbers ([`super::animal_count_search`]): each row meets every target
+//!    and one animal fewer does not. Only such rows are listed; the least cost is the
+//!    cheapest of them, the fewest animals the row with the fewest (ties: the cheaper).
 
 use super::GroupError;
+use super::animal_count_search::{Cache, Confirm, Fewest, MAX_EVALUATIONS, fewest_animals};
 use super::approximation::Approximation;
-use super::effort_search::{
-    Approximate, Goals, Search, best_for_budget, candidate_trials, goals, least_cost,
-};
-use super::grid::{DesignSetup, per_condition_cap, run_point};
+use super::effort_search::{Search, best_for_budget, candidate_trials, goals, least_cost};
+use super::grid::{DesignSetup, per_condition_cap};
 use super::summary::GroupSummary;
 use crate::design::goals::Budget;
 use crate::engine::{Figure, Share};
@@ -27,8 +28,6 @@ use serde::Serialize;
 
 /// Most frontier rows simulated per mode.
 pub const MAX_ROWS: usize = 7;
-/// Most times the least-cost row is given more animals to confirm its targets.
-pub const MAX_BUMPS: usize = 8;
 
 /// A test that drives the search.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -53,7 +52,43 @@ pub struct Allocation {
     pub d_prime_half_width: Figure,
     /// Whether the simulation meets every target (`None` without targets).
     pub meets_targets: Option<bool>,
+    /// Fewest-animals rows: ± animals of Monte Carlo uncertainty of the count.
+    pub band: Option<u32>,
+    /// Fewest-animals rows: the same trial count with one animal fewer, on the same
+    /// simulated studies (`None` when the row is the smallest study the test allows).
+    pub one_fewer: Option<Shortfall>,
     pub summary: GroupSummary,
+}
+
+/// The simulated figures of one animal fewer than a fewest-animals row.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Shortfall {
+    pub animals: u32,
+    pub power: Vec<Share>,
+    pub criterion_half_width: Figure,
+    pub d_prime_half_width: Figure,
+    pub meets_targets: Option<bool>,
+}
+
+impl Shortfall {
+    /// The figures of a simulated allocation.
+    pub fn of(a: &Allocation) -> Self {
+        Self {
+            animals: a.animals,
+            power: a.power.clone(),
+            criterion_half_width: a.criterion_half_width,
+            d_prime_half_width: a.d_prime_half_width,
+            meets_targets: a.meets_targets,
+        }
+    }
+
+    /// The simulated power of the weakest driving test.
+    pub fn weakest(&self) -> Option<Share> {
+        self.power
+            .iter()
+            .copied()
+            .min_by(|a, b| a.value.total_cmp(&b.value))
+    }
 }
 
 impl Allocation {
@@ -79,10 +114,13 @@ pub struct EffortSplit {
     pub budget_frontier: Vec<Allocation>,
     /// Index of the best row of `budget_frontier`.
     pub best_for_budget: Option<usize>,
-    /// With targets: the fewest animals that meet them at each frontier trial count.
+    /// With targets: at each frontier trial count, the fewest animals whose simulation
+    /// meets every target (one fewer does not). Only rows that meet them.
     pub target_frontier: Vec<Allocation>,
-    /// Index of the cheapest row of `target_frontier` that the simulation confirms.
+    /// Index of the cheapest row of `target_frontier`.
     pub least_cost: Option<usize>,
+    /// Index of the row of `target_frontier` with the fewest animals (ties: the cheaper).
+    pub fewest_animals: Option<usize>,
     pub notes: Vec<String>,
 }
 
@@ -92,91 +130,32 @@ pub fn max_replicates(setup: &DesignSetup) -> u64 {
         return 0;
     };
     let g = goals(setup);
-    let mut rows = 0;
+    let mut evaluations = 0;
     if budget.total.is_some() && !g.tests.is_empty() {
-        rows += MAX_ROWS;
+        evaluations += MAX_ROWS as u64;
     }
     if g.has_targets() {
-        rows += MAX_ROWS + MAX_BUMPS;
+        evaluations += MAX_ROWS as u64 * MAX_EVALUATIONS;
     }
-    rows as u64 * setup.plan.study().experiments
+    evaluations * setup.plan.study().experiments
 }
 
-/// Simulations already run (grid cells and earlier rows), so no point is simulated twice.
-type Cache = Vec<((u32, u32), GroupSummary)>;
-
-struct Confirm<'a, 'b> {
-    setup: &'a DesignSetup<'b>,
-    goals: &'a Goals,
-    cache: Cache,
-    progress: &'a (dyn Fn(u64) + Sync),
-}
-
-impl Confirm<'_, '_> {
-    fn run(&mut self, a: &Approximate) -> Result<Allocation, GroupError> {
-        let key = (a.animals, a.trials);
-        let summary = match self.cache.iter().find(|(k, _)| *k == key) {
-            Some((_, s)) => s.clone(),
-            None => {
-                let plan = self.setup.plan;
-                let s = run_point(
-                    self.setup,
-                    a.animals,
-                    a.trials,
-                    plan.study().experiments,
-                    plan.study().seed,
-                    self.progress,
-                )?;
-                self.cache.push((key, s.clone()));
-                s
-            }
-        };
-        let power: Vec<Share> = self
-            .goals
-            .tests
-            .iter()
-            .map(|&i| summary.tests[i].two_stage)
-            .collect();
-        let g = self.goals;
-        let meets = g.has_targets().then(|| {
-            power
-                .iter()
-                .zip(&g.power)
-                .all(|(p, t)| t.is_none_or(|t| p.value >= t))
-                && g.criterion_half_width
-                    .is_none_or(|t| summary.criterion.half_width.value <= t)
-                && g.d_prime_half_width
-                    .is_none_or(|t| summary.d_prime.half_width.value <= t)
-        });
-        Ok(Allocation {
-            animals: a.animals,
-            trials: a.trials,
-            trials_per_animal: self.setup.trials_per_animal(a.trials),
-            cost: a.cost,
-            approx_power: a.power.clone(),
-            power,
-            criterion_half_width: summary.criterion.half_width,
-            d_prime_half_width: summary.d_prime.half_width,
-            meets_targets: meets,
-            summary,
-        })
-    }
-}
-
-/// The frontier's trial counts: the ends of the line, the best count and the grid's counts,
-/// thinned to [`MAX_ROWS`] by dropping the count with the closest neighbours (log scale).
-pub fn frontier_trials(line: &[u32], best: u32, grid: &[u32]) -> Vec<u32> {
+/// The frontier's trial counts: the ends of the line, the counts to `keep` (the best ones)
+/// and the grid's counts, thinned to [`MAX_ROWS`] by dropping the count with the closest
+/// neighbours (log scale); the ends and the kept counts stay.
+pub fn frontier_trials(line: &[u32], keep: &[u32], grid: &[u32]) -> Vec<u32> {
     let (Some(&first), Some(&last)) = (line.first(), line.last()) else {
         return Vec::new();
     };
-    let mut rows: Vec<u32> = vec![first, last, best];
+    let mut rows: Vec<u32> = vec![first, last];
+    rows.extend(keep.iter().filter(|t| line.contains(t)));
     rows.extend(grid.iter().filter(|t| line.contains(t)));
     rows.sort_unstable();
     rows.dedup();
     while rows.len() > MAX_ROWS {
         let gap = |i: usize| (f64::from(rows[i + 1]) / f64::from(rows[i - 1])).ln();
         let drop = (1..rows.len() - 1)
-            .filter(|&i| rows[i] != best)
+            .filter(|&i| !keep.contains(&rows[i]))
             .min_by(|&i, &k| gap(i).total_cmp(&gap(k)));
         match drop {
             Some(i) => {
@@ -250,6 +229,7 @@ pub fn effort_split(
         best_for_budget: None,
         target_frontier: Vec::new(),
         least_cost: None,
+        fewest_animals: None,
         notes: Vec::new(),
     };
     let mut confirm = Confirm {
@@ -282,7 +262,7 @@ fn budget_mode(
         return Ok(());
     };
     let counts: Vec<u32> = line.iter().map(|a| a.trials).collect();
-    let rows = frontier_trials(&counts, line[best].trials, grid);
+    let rows = frontier_trials(&counts, &[line[best].trials], grid);
     for n in &rows {
         if let Some(a) = line.iter().find(|a| a.trials == *n) {
             split.budget_frontier.push(confirm.run(a)?);
@@ -318,33 +298,37 @@ fn target_mode(
         ));
         return Ok(());
     };
+    // The approximation's fewest animals (ties: the cheaper) joins the frontier.
+    let fewest = (0..line.len())
+        .min_by(|&i, &k| {
+            let (a, b) = (&line[i], &line[k]);
+            a.animals.cmp(&b.animals).then(a.cost.total_cmp(&b.cost))
+        })
+        .unwrap_or(best);
     let counts: Vec<u32> = line.iter().map(|a| a.trials).collect();
-    let rows = frontier_trials(&counts, line[best].trials, grid);
+    let rows = frontier_trials(&counts, &[line[best].trials, line[fewest].trials], grid);
     for n in &rows {
-        let Some(a) = line.iter().find(|a| a.trials == *n) else {
+        let (Some(a), Some(c)) = (line.iter().find(|a| a.trials == *n), search.candidate(*n))
+        else {
             continue;
         };
-        let mut row = confirm.run(a)?;
-        if *n == line[best].trials {
-            // Confirm the approximate optimum by simulation, adding animals if it falls short.
-            let candidate = search.candidate(*n);
-            let mut bumps = 0;
-            while row.meets_targets == Some(false) && bumps < MAX_BUMPS {
-                let Some(c) = candidate else { break };
-                let more = (row.animals + row.animals.div_ceil(20).max(1))
-                    .min(super::effort_search::MAX_ANIMALS);
-                row = confirm.run(&search.evaluate(c, more))?;
-                bumps += 1;
-            }
+        match fewest_animals(search, c, a.animals, confirm)? {
+            Fewest::Found(row) => split.target_frontier.push(row),
+            Fewest::NotReached(row) => split.notes.push(format!(
+                "at {} trials per animal even {} simulated animals fall short of the targets",
+                row.trials_per_animal, row.animals
+            )),
         }
-        split.target_frontier.push(row);
     }
-    split.least_cost = (0..split.target_frontier.len())
-        .filter(|&i| split.target_frontier[i].meets_targets == Some(true))
-        .min_by(|&i, &k| {
-            let (a, b) = (&split.target_frontier[i], &split.target_frontier[k]);
-            a.cost.total_cmp(&b.cost).then(a.animals.cmp(&b.animals))
-        });
+    let rows = &split.target_frontier;
+    split.least_cost = (0..rows.len()).min_by(|&i, &k| {
+        let (a, b) = (&rows[i], &rows[k]);
+        a.cost.total_cmp(&b.cost).then(a.animals.cmp(&b.animals))
+    });
+    split.fewest_animals = (0..rows.len()).min_by(|&i, &k| {
+        let (a, b) = (&rows[i], &rows[k]);
+        a.animals.cmp(&b.animals).then(a.cost.total_cmp(&b.cost))
+    });
     if split.least_cost.is_none() {
         split.notes.push(
             "no simulated allocation met every target; raise the cap, the budget or max_trials"
@@ -361,12 +345,13 @@ mod tests {
     #[test]
     fn frontier_keeps_ends_best_and_grid_within_the_row_limit() {
         let line: Vec<u32> = (20..=200).collect();
-        let rows = frontier_trials(&line, 57, &[20, 40, 80, 160, 320]);
+        let rows = frontier_trials(&line, &[57], &[20, 40, 80, 160, 320]);
         assert_eq!(rows, vec![20, 40, 57, 80, 160, 200]);
         let many: Vec<u32> = (10..=30).step_by(2).collect();
-        let rows = frontier_trials(&line, 57, &many);
+        let rows = frontier_trials(&line, &[57, 21], &many);
         assert!(rows.len() <= MAX_ROWS);
-        assert!(rows.contains(&57) && rows.contains(&20) && rows.contains(&200));
-        assert!(frontier_trials(&[], 5, &[5]).is_empty());
+        assert!(rows.contains(&57) && rows.contains(&21));
+        assert!(rows.contains(&20) && rows.contains(&200));
+        assert!(frontier_trials(&[], &[5], &[5]).is_empty());
     }
 }

@@ -1,9 +1,13 @@
 //! One simulated group study per replicate: draw every animal from the population, simulate
 //! and fit it, test the group, fit the pooled counts, and tally.
 //!
-//! All randomness of a replicate comes from that replicate's own stream, in a fixed order
-//! (animal 1's deviation, animal 1's counts, animal 2's …, then one separate two-population
-//! study per group-difference hypothesis), so results are bit-identical for any thread count.
+//! All randomness of a replicate comes from that replicate's own stream, so results are
+//! bit-identical for any thread count. The stream first gives two seeds per group-difference
+//! hypothesis (one per population), then one seed per animal of the main study; each animal
+//! draws its deviation and then its counts from its own seed. So a study of N animals is
+//! exactly the first N animals of a study of N + 1 (common random numbers: neighbouring
+//! animal counts are compared on the same animals), and an animal's deviation is the same at
+//! every trial count.
 
 use super::animal::{AnimalEstimate, AnimalPath, PooledEstimate, criterion_index, d_prime_index};
 use super::approximation::t_quantile;
@@ -12,6 +16,7 @@ use super::population::{Deviation, Population};
 use crate::engine::parallel::Kernel;
 use crate::infer::Moments;
 use crate::simulate::ReplicateRng;
+use rand::{Rng, SeedableRng};
 
 /// Running sums for an estimate of a population mean.
 #[derive(Debug, Clone, Default, PartialEq)]
@@ -147,13 +152,15 @@ impl<P: AnimalPath> GroupKernel<P> {
         }
     }
 
-    fn study(&self, rng: &mut ReplicateRng, animals: u32, shift: f64) -> Study {
+    /// `animals` animals of one population; `seeds` gives one seed per animal, in order.
+    fn study(&self, seeds: &mut ReplicateRng, animals: u32, shift: f64) -> Study {
         let mut pool = self.path.empty();
         let mut fits = Vec::with_capacity(animals as usize);
         let mut dropped = 0;
         for _ in 0..animals {
-            let deviation: Deviation = self.population.draw(rng).shifted(shift);
-            let counts = self.path.simulate(rng, &deviation);
+            let mut rng = ReplicateRng::seed_from_u64(seeds.next_u64());
+            let deviation: Deviation = self.population.draw(&mut rng).shifted(shift);
+            let counts = self.path.simulate(&mut rng, &deviation);
             self.path.add(&mut pool, &counts);
             match self.path.fit_animal(&counts) {
                 Some(e) => fits.push(e),
@@ -221,6 +228,15 @@ impl<P: AnimalPath> Kernel for GroupKernel<P> {
     }
 
     fn replicate(&self, rng: &mut ReplicateRng, tally: &mut GroupTally) {
+        // Seeds of the two-population studies come first, a fixed number, so the main
+        // study's animals sit at the same place in the stream whatever their number.
+        let population_seeds: Vec<[u64; 2]> = self
+            .tests
+            .iter()
+            .filter(|t| t.two_populations())
+            .map(|_| [rng.next_u64(), rng.next_u64()])
+            .collect();
+        let mut population_seeds = population_seeds.into_iter();
         let main = self.study(rng, self.animals, 0.0);
         tally.studies += 1;
         tally.animals += u64::from(self.animals);
@@ -250,9 +266,16 @@ impl<P: AnimalPath> Kernel for GroupKernel<P> {
             let super::hypotheses::Contrast::GroupDifference { shift, .. } = test.contrast else {
                 continue;
             };
+            let Some([a, b]) = population_seeds.next() else {
+                continue;
+            };
             let n1 = self.animals / 2;
-            let first = self.study(rng, n1, 0.0);
-            let second = self.study(rng, self.animals - n1, shift);
+            let first = self.study(&mut ReplicateRng::seed_from_u64(a), n1, 0.0);
+            let second = self.study(
+                &mut ReplicateRng::seed_from_u64(b),
+                self.animals - n1,
+                shift,
+            );
             tally.animals += u64::from(self.animals);
             tally.animals_dropped += first.dropped + second.dropped;
             let [at_null, at_truth] = [test.null, test.truth].map(|value| {
@@ -280,5 +303,53 @@ impl<P: AnimalPath> Kernel for GroupKernel<P> {
         into.pooled_criterion.merge(&o.pooled_criterion);
         into.pooled_d_prime.merge(&o.pooled_d_prime);
         into.pooled_failed += o.pooled_failed;
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::design::{Condition, Split};
+    use crate::groups::animal_yesno::YesNoAnimals;
+    use crate::model::Observer;
+    use crate::simulate::replicate_rng;
+    use crate::vocab::RateCorrection;
+
+    fn path() -> YesNoAnimals {
+        let observer = Observer {
+            d_prime: 1.2,
+            criterion: -0.2,
+            sigma: 1.0,
+            lapse: None,
+        };
+        let condition = Condition {
+            name: "c".into(),
+            presence: 0.5,
+            d_prime: 1.2,
+            criterion: -0.2,
+        };
+        let split = Split {
+            present: 15,
+            absent: 15,
+        };
+        YesNoAnimals::new(&observer, &condition, split, RateCorrection::LogLinear)
+    }
+
+    // Common random numbers across animal counts: on the same replicate stream, the animals
+    // of a study of N are exactly the first N of a study of N + 1.
+    #[test]
+    fn a_study_of_n_animals_is_the_first_n_of_n_plus_one() {
+        let population = Population {
+            sd_d_prime: 0.3,
+            sd_criterion: 0.35,
+            correlation: -0.3,
+        };
+        let kernel = GroupKernel::new(path(), population, 9, Vec::new(), 0.05, 0.95, (-0.2, 1.2));
+        for r in 0..20 {
+            let small = kernel.study(&mut replicate_rng(5, 1, r), 8, 0.0);
+            let large = kernel.study(&mut replicate_rng(5, 1, r), 9, 0.0);
+            assert_eq!(small.fits[..], large.fits[..small.fits.len()]);
+            assert_eq!(small.dropped, 0);
+        }
     }
 }

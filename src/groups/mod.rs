@@ -16,6 +16,7 @@
 
 pub mod animal;
 pub mod animal_cells;
+pub mod animal_count_search;
 pub mod animal_rating;
 pub mod animal_yesno;
 pub mod approximation;

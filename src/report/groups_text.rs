@@ -6,12 +6,13 @@ use super::CAUTION;
 use super::style::{new_table, right_align};
 use crate::design::goals::TestKind;
 use crate::engine::Share;
-use crate::groups::effort::Allocation;
 use crate::groups::summary::TestSummary;
-use crate::groups::{DesignGroups, EffortSplit, GridCell, GroupReport, GroupTest};
+use crate::groups::{DesignGroups, GridCell, GroupReport, GroupTest};
 use crate::plan::Plan;
 use crate::vocab::Sided;
 use std::fmt::Write;
+
+mod effort_text;
 
 /// The caution specific to groups, repeated under every group report.
 pub const GROUP_CAUTION: &str = "How many animals to use is settled with your local animal-welfare body \
@@ -71,7 +72,7 @@ fn header(out: &mut String, plan: &Plan, r: &GroupReport) {
 }
 
 /// "0.83 (0.81–0.85)"; a dash when undefined.
-fn power(s: &Share) -> String {
+pub(super) fn power(s: &Share) -> String {
     if s.value.is_finite() {
         format!("{:.2} ({:.2}–{:.2})", s.value, s.low, s.high)
     } else {
@@ -235,7 +236,7 @@ fn design_block(out: &mut String, r: &GroupReport, d: &DesignGroups) {
     );
     precision_reading(out, r, d);
     if let Some(e) = &d.effort {
-        effort_block(out, d, e);
+        effort_text::effort_block(out, r, d, e);
     }
     let _ = writeln!(out);
 }
@@ -261,157 +262,4 @@ fn precision_reading(out: &mut String, r: &GroupReport, d: &DesignGroups) {
         100.0 * small.summary.pooled_criterion.coverage.value,
         100.0 * large.summary.pooled_criterion.coverage.value,
     );
-}
-
-/// What the simulation gives an answer: the weakest power, or the half-width of the mean c
-/// when no hypothesis drives the split.
-fn outcome(a: &Allocation) -> String {
-    match a.weakest() {
-        Some(s) => format!("power {}", power(&s)),
-        None => format!(
-            "half-width ±{:.3} on the mean criterion",
-            a.criterion_half_width.value
-        ),
-    }
-}
-
-fn goal_names(e: &EffortSplit) -> String {
-    let names: Vec<String> = e.goals.iter().map(|g| format!("\"{}\"", g.name)).collect();
-    names.join(" and ")
-}
-
-fn frontier_table(
-    d: &DesignGroups,
-    e: &EffortSplit,
-    rows: &[Allocation],
-    mark: Option<usize>,
-    label: &str,
-) -> String {
-    let mut header = vec!["trials/animal".to_string(), "animals".into(), "cost".into()];
-    for g in &e.goals {
-        header.push(format!("≈ power \"{}\"", g.name));
-        header.push(format!("power \"{}\" [95%]", g.name));
-    }
-    header.push("±c (mean)".into());
-    header.push(String::new());
-    let mut t = new_table(header.iter().map(String::as_str).collect());
-    for (i, a) in rows.iter().enumerate() {
-        let mut row = vec![
-            if d.conditions > 1 {
-                format!("{} ({}/cond.)", a.trials_per_animal, a.trials)
-            } else {
-                a.trials_per_animal.to_string()
-            },
-            a.animals.to_string(),
-            format!("{:.0}", a.cost),
-        ];
-        for (p, s) in a.approx_power.iter().zip(&a.power) {
-            row.push(format!("{p:.2}"));
-            row.push(power(s));
-        }
-        row.push(format!("{:.3}", a.criterion_half_width.value));
-        row.push(if Some(i) == mark {
-            label.to_string()
-        } else {
-            String::new()
-        });
-        t.add_row(row);
-    }
-    right_align(&mut t, 0..3 + 2 * e.goals.len() + 1);
-    t.to_string()
-}
-
-fn effort_block(out: &mut String, d: &DesignGroups, e: &EffortSplit) {
-    let b = &e.budget;
-    let per_cond = if d.conditions > 1 {
-        " per condition"
-    } else {
-        ""
-    };
-    let _ = writeln!(
-        out,
-        "Effort split: {} per animal + {} per trial{}; trials{per_cond} searched from {} to {} (≈ = large-sample approximation, then simulated).",
-        b.cost_per_animal,
-        b.cost_per_trial,
-        b.total.map_or(String::new(), |t| format!(", budget {t}")),
-        e.trials_range[0],
-        e.trials_range[1],
-    );
-    for note in &e.notes {
-        let _ = writeln!(out, "Note: {note}");
-    }
-    if !e.budget_frontier.is_empty() {
-        let _ = writeln!(out, "Most animals the budget buys at each trial count:");
-        let _ = writeln!(
-            out,
-            "{}",
-            frontier_table(d, e, &e.budget_frontier, e.best_for_budget, "← best")
-        );
-    }
-    if !e.target_frontier.is_empty() {
-        let _ = writeln!(
-            out,
-            "Fewest animals meeting the targets at each trial count (after simulation):"
-        );
-        let _ = writeln!(
-            out,
-            "{}",
-            frontier_table(d, e, &e.target_frontier, e.least_cost, "← least cost")
-        );
-    }
-    let goals = goal_names(e);
-    if let (Some(i), Some(total)) = (e.best_for_budget, b.total) {
-        let a = &e.budget_frontier[i];
-        let _ = writeln!(
-            out,
-            "Reading: with the budget of {total}: {} animals × {} trials each (cost {:.0}) gives power {} for {goals}.",
-            a.animals,
-            a.trials_per_animal,
-            a.cost,
-            a.weakest().map_or("–".into(), |s| power(&s)),
-        );
-    }
-    if let Some(i) = e.least_cost {
-        let a = &e.target_frontier[i];
-        let targets: Vec<String> = e
-            .goals
-            .iter()
-            .filter_map(|g| g.target.map(|t| format!("power {t} for \"{}\"", g.name)))
-            .chain(
-                e.criterion_half_width
-                    .map(|w| format!("±{w} on the mean criterion")),
-            )
-            .chain(e.d_prime_half_width.map(|w| format!("±{w} on the mean d′")))
-            .collect();
-        let within = match b.total {
-            Some(t) if a.cost <= t => format!(", within the budget of {t}"),
-            Some(t) => format!(", over the budget of {t}"),
-            None => String::new(),
-        };
-        let _ = writeln!(
-            out,
-            "Reading: the least cost meeting {}: {} animals × {} trials each (cost {:.0}{within}), simulated {}.",
-            targets.join(" and "),
-            a.animals,
-            a.trials_per_animal,
-            a.cost,
-            outcome(a),
-        );
-        // Reduction: the fewest animals that meet the targets, whatever they cost.
-        let fewest = e
-            .target_frontier
-            .iter()
-            .filter(|r| r.meets_targets == Some(true))
-            .min_by(|x, y| x.animals.cmp(&y.animals).then(x.cost.total_cmp(&y.cost)));
-        if let Some(f) = fewest.filter(|f| f.animals < a.animals) {
-            let _ = writeln!(
-                out,
-                "Reading: the fewest animals among these rows that meet the same targets: {} animals × {} trials each (cost {:.0}), simulated {}.",
-                f.animals,
-                f.trials_per_animal,
-                f.cost,
-                outcome(f),
-            );
-        }
-    }
 }
