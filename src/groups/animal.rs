@@ -1,7 +1,7 @@
 //! What every per-animal path does: simulate one animal's counts from its own parameters,
 //! fit them, and fit the counts of all animals summed (the pooled analysis).
 //!
-//! Three paths, chosen by the design as `engine::run_scenario` chooses its kernels: the
+//! Three paths, chosen by `design::Route::of` as for a single subject of the design: the
 //! closed-form yes/no fit ([`super::animal_yesno`]), the rating maximum-likelihood fit
 //! ([`super::animal_rating`]), and the general fit over observed cells for designs with
 //! several conditions or coarse records ([`super::animal_cells`]).

@@ -1,12 +1,16 @@
 //! Yes/no animals (one condition, full record): hits and false alarms drawn from the animal's
 //! own rates, fitted in closed form (d′ = z(H) − z(F), c = −[z(H) + z(F)]/2) after the plan's
-//! rate correction; the pooled fit is the same closed form on the summed counts, with the
-//! Gourevitch & Galanter (1967) covariance.
+//! rate correction, with the z tables of the engine's closed-form route
+//! (`engine::yesno_kernel::YesNoEstimator`): every animal of a grid point has the same
+//! present/absent split, so one animal's fit is two table lookups, exactly as one subject's.
+//! The pooled fit is the same closed form on the summed counts, with the Gourevitch &
+//! Galanter (1967) covariance.
 
 use super::animal::{AnimalEstimate, AnimalPath, PooledEstimate};
 use super::population::Deviation;
 use crate::design::{Condition, Split};
-use crate::fit::fit_yes_no;
+use crate::engine::yesno_kernel::YesNoEstimator;
+use crate::fit::{YesNoFit, fit_yes_no};
 use crate::model::Observer;
 use crate::simulate::ReplicateRng;
 use crate::vocab::RateCorrection;
@@ -27,6 +31,8 @@ pub struct YesNoAnimals {
     observer: Observer,
     split: Split,
     correction: RateCorrection,
+    /// The single-subject route's z tables at this split.
+    estimator: YesNoEstimator,
 }
 
 impl YesNoAnimals {
@@ -42,6 +48,14 @@ impl YesNoAnimals {
             observer: condition.observer(observer),
             split,
             correction,
+            // The interval level is the tally's business; group fits read only the fit.
+            estimator: YesNoEstimator::new(
+                [condition.d_prime, condition.criterion],
+                split.present,
+                split.absent,
+                correction,
+                crate::infer::z_critical(0.95),
+            ),
         }
     }
 
@@ -52,6 +66,24 @@ impl YesNoAnimals {
             criterion: deviation.criterion_at(self.observer.criterion),
             ..self.observer
         }
+    }
+}
+
+impl YesNoAnimals {
+    /// One animal's fit from the single-subject route's tables; `None` when a corrected rate
+    /// has no z (the degenerate rule) or the counts are not this grid point's.
+    fn fit_one(&self, c: &YesNoCounts) -> Option<YesNoFit> {
+        let same_split =
+            c.present == u64::from(self.split.present) && c.absent == u64::from(self.split.absent);
+        if !same_split || c.hits > c.present || c.false_alarms > c.absent {
+            return fit_counts(c, self.correction);
+        }
+        let e = &self.estimator;
+        let fit = YesNoFit::from_entries(
+            e.z_hits.get(c.hits as u32)?,
+            e.z_false_alarms.get(c.false_alarms as u32)?,
+        );
+        (fit.measures.d_prime.is_finite() && fit.measures.criterion.is_finite()).then_some(fit)
     }
 }
 
@@ -89,7 +121,7 @@ impl AnimalPath for YesNoAnimals {
     }
 
     fn fit_animal(&self, c: &YesNoCounts) -> Option<AnimalEstimate> {
-        let fit = fit_counts(c, self.correction)?;
+        let fit = self.fit_one(c)?;
         Some(AnimalEstimate {
             d_prime: vec![fit.measures.d_prime],
             criterion: vec![fit.measures.criterion],
@@ -175,8 +207,8 @@ mod tests {
         assert!((f - fa).abs() < 6.0 * 0.00056, "{f} vs {fa}");
     }
 
-    // references.md worked example (SciPy 1.17): 20/20 hits, 5/25 false alarms, half-n rule
-    // → d′ = 2.801585, c = −0.559171.
+    // Worked example computed with SciPy 1.17 (norm.ppf of the half-n rates): 20/20 hits,
+    // 5/25 false alarms → d′ = 2.801585, c = −0.559171.
     #[test]
     fn animal_fit_is_the_closed_form() {
         let a = animals(None, RateCorrection::HalfN);
@@ -193,8 +225,8 @@ mod tests {
         assert!(none.fit_animal(&c).is_none());
     }
 
-    // Gourevitch & Galanter (1967), references.md [library]: H = .8, F = .2, 50/50 →
-    // Var(d′) = 0.081655, Var(c) = 0.020414.
+    // Gourevitch & Galanter (1967) variance, evaluated with SciPy 1.17: H = .8, F = .2, 50/50
+    // → Var(d′) = 0.081655, Var(c) = 0.020414.
     #[test]
     fn pooled_fit_carries_the_asymptotic_covariance() {
         let a = animals(None, RateCorrection::None);

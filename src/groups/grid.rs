@@ -12,7 +12,7 @@ use super::kernel::GroupKernel;
 use super::population::Population;
 use super::summary::{GroupSummary, summarise};
 use crate::analytic::trial_grid::fits_design;
-use crate::design::{Design, Response, split_trials};
+use crate::design::{Design, Response, Route, split_trials};
 use crate::engine::parallel::run_replicates;
 use crate::plan::Plan;
 
@@ -85,23 +85,25 @@ pub fn run_point(
     let design = setup.design;
     let correction = plan.study().rate_correction;
     let condition = &design.conditions[0];
-    if !design.is_single_table() {
-        let path = CellsAnimals::new(design, plan.observer(), trials, correction).map_err(|e| {
-            GroupError::Model {
-                design: design.name.clone(),
-                message: e.to_string(),
-            }
-        })?;
-        return Ok(run_path(path, setup, animals, replicates, seed, progress));
-    }
     let split = split_trials(trials, condition.presence);
-    Ok(match &design.response {
-        Response::YesNo => {
+    // The route of a single subject of this design, by the one rule (design::Route).
+    Ok(match (Route::of(design), &design.response) {
+        (Route::YesNoClosedForm, _) => {
             let path = YesNoAnimals::new(plan.observer(), condition, split, correction);
             run_path(path, setup, animals, replicates, seed, progress)
         }
-        Response::Rating(scale) => {
+        (Route::RatingFastPath, Response::Rating(scale)) => {
             let path = RatingAnimals::new(scale, condition, plan.observer(), split, correction);
+            run_path(path, setup, animals, replicates, seed, progress)
+        }
+        _ => {
+            let path =
+                CellsAnimals::new(design, plan.observer(), trials, correction).map_err(|e| {
+                    GroupError::Model {
+                        design: design.name.clone(),
+                        message: e.to_string(),
+                    }
+                })?;
             run_path(path, setup, animals, replicates, seed, progress)
         }
     })

@@ -158,7 +158,7 @@ pub fn summarise(tests: &[GroupTest], tally: &GroupTally, truth: (f64, f64)) -> 
 mod tests {
     use super::*;
 
-    // references.md, Wilson 95% intervals [library: statsmodels proportion_confint]:
+    // Wilson (1927) 95% interval, as statsmodels' proportion_confint(method="wilson") gives it:
     // 80/100 → [0.711171, 0.866633].
     #[test]
     fn shares_carry_wilson_intervals() {
