@@ -134,7 +134,7 @@ impl AnimalPath for CellsAnimals {
             .flat_map(|v| [v.d_prime, v.criterion])
             .collect();
         let dim = values.len();
-        let cov = &fitted.covariance;
+        let cov = &fitted.precision.covariance;
         let mut covariance = vec![0.0; dim * dim];
         for (a, ia) in index.iter().enumerate() {
             for (b, ib) in index.iter().enumerate() {
