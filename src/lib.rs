@@ -63,6 +63,7 @@ pub mod progress;
 pub mod report;
 pub mod search;
 pub mod simulate;
+pub mod spacing;
 pub mod vocab;
 
 pub use plan::{Plan, PlanError};

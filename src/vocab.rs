@@ -5,6 +5,11 @@
 
 use serde::{Deserialize, Serialize};
 
+/// Largest number of ordered response categories a condition, a table or a plan's scale may
+/// have: the one limit the plan validator, the rating fit's fixed-size arrays and the general
+/// model share.
+pub const MAX_CATEGORIES: usize = 12;
+
 /// A quantity the report summarises.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "snake_case")]

@@ -15,16 +15,9 @@ pub const MIN_TRIALS: u32 = 2;
 /// integer and deduplicated (so small ranges give fewer counts). Both ends are included.
 pub fn log_spaced(from: u32, to: u32, points: usize) -> Vec<u32> {
     let (lo, hi) = (from.min(to), from.max(to));
-    if points <= 1 || lo == hi {
-        return vec![lo];
-    }
-    let (a, b) = (f64::from(lo).ln(), f64::from(hi).ln());
-    let step = (b - a) / (points - 1) as f64;
-    let mut out: Vec<u32> = (0..points)
-        .map(|i| {
-            let x = (a + step * i as f64).exp().round();
-            (x as u32).clamp(lo, hi)
-        })
+    let mut out: Vec<u32> = crate::spacing::log_grid(f64::from(lo), f64::from(hi), points)
+        .into_iter()
+        .map(|x| (x.round() as u32).clamp(lo, hi))
         .collect();
     out.dedup();
     out

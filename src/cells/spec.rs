@@ -9,8 +9,7 @@
 
 use crate::cells::error::SpecError;
 
-/// Largest number of response categories a condition may have.
-pub const MAX_CATEGORIES: usize = 12;
+pub use crate::vocab::MAX_CATEGORIES;
 
 /// How one kind of natural parameter enters the free vector θ.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

@@ -43,8 +43,7 @@ pub use measures::{Estimate, MeasureError, RatingMeasures, measures};
 pub use params::{ParamsError, RatingParams};
 pub use table::{RatingTable, Row, TableError};
 
-/// Largest number of response categories a table may have.
-pub const MAX_CATEGORIES: usize = 12;
+pub use crate::vocab::MAX_CATEGORIES;
 /// Largest number of criteria (K − 1).
 pub const MAX_CRITERIA: usize = MAX_CATEGORIES - 1;
 /// Largest number of free parameters: μ, σ and K − 1 criteria.

@@ -66,19 +66,7 @@ pub fn log_spaced(low: f64, high: f64, count: usize) -> Result<Vec<f64>, IdealEr
     if !(low.is_finite() && high.is_finite() && low > 0.0 && low <= high && count >= 1) {
         return Err(IdealError::Grid { low, high, count });
     }
-    if count == 1 {
-        return Ok(vec![low]);
-    }
-    let (a, b) = (low.ln(), high.ln());
-    let step = (b - a) / (count - 1) as f64;
-    // End points are set exactly so the grid covers [low, high] without rounding drift.
-    Ok((0..count)
-        .map(|i| match i {
-            0 => low,
-            i if i == count - 1 => high,
-            i => (a + step * i as f64).exp(),
-        })
-        .collect())
+    Ok(crate::spacing::log_grid(low, high, count))
 }
 
 #[cfg(test)]

@@ -5,6 +5,7 @@ use crate::design::RatingScale;
 use crate::model::{Observer, normal};
 use crate::plan::PlanError;
 use crate::plan::raw::RawScale;
+use crate::vocab::MAX_CATEGORIES;
 use toml::Spanned;
 
 pub(super) fn scale(
@@ -14,11 +15,11 @@ pub(super) fn scale(
 ) -> Result<RatingScale, PlanError> {
     let s = spanned.get_ref();
     let k = *s.categories.get_ref();
-    if !(2..=12).contains(&k) {
+    if !(2..=MAX_CATEGORIES as i64).contains(&k) {
         return Err(ctx.at(
             &s.categories,
             "categories",
-            format!("{k} categories is outside 2 to 12"),
+            format!("{k} categories is outside 2 to {MAX_CATEGORIES}"),
         ));
     }
     let b = *s.boundary.get_ref();
