@@ -114,3 +114,25 @@ impl RateCorrection {
         }
     }
 }
+
+/// What the analysis knows of the base rate π (share of encounters that hold the stimulus) in a
+/// record that does not fix present and absent trial counts. One type for the plan, the design
+/// and the observation model.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(tag = "kind", content = "encounters", rename_all = "kebab-case")]
+pub enum BaseRate {
+    /// Known: fixed by the experimenter, held at the condition's stated value.
+    Known,
+    /// Estimated, helped by an independent census of this many encounters, each counted as
+    /// "stimulus present" with probability π.
+    Census(u64),
+    /// Estimated from the behavioural record alone.
+    Unknown,
+}
+
+impl BaseRate {
+    /// True when π is a free parameter.
+    pub fn is_free(self) -> bool {
+        !matches!(self, BaseRate::Known)
+    }
+}

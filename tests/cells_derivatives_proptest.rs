@@ -6,7 +6,7 @@ use vigil::cells::likelihood::{Counts, log_likelihood, log_likelihood_derivative
 use vigil::cells::observation_model::ObservationModel;
 use vigil::cells::parameter_map::ParameterKind;
 use vigil::cells::spec::{
-    BaseRateKnowledge, BaseRateLink, ConditionSpec, Lapse, NaturalValues, Record, Role,
+    BaseRate, BaseRateLink, ConditionSpec, Lapse, NaturalValues, Record, Role,
 };
 
 /// Central-difference step and tolerance: O(h²) truncation (~1e-8 relative) and rounding
@@ -53,7 +53,7 @@ fn design(
 ) -> ObservationModel {
     let boundary = 1 + boundary % (k - 1);
     let totals = |name: &str, response: bool, census: u64| {
-        let knowledge = BaseRateKnowledge::Census(census);
+        let knowledge = BaseRate::Census(census);
         let rec = if response {
             Record::ResponseTotals {
                 encounters: 90,

@@ -12,7 +12,7 @@
 use statrs::distribution::{Binomial, Discrete};
 use vigil::cells::cell_probabilities::{Order, cell_probabilities};
 use vigil::cells::observation_model::ObservationModel;
-use vigil::cells::spec::{BaseRateKnowledge, ConditionSpec, Record};
+use vigil::cells::spec::{BaseRate, ConditionSpec, Record};
 use vigil::simulate::{BinomialTable, multinomial_into, replicate_rng};
 
 mod common;
@@ -103,7 +103,7 @@ fn the_error_totals_coarsening_matches_the_golden_distribution() {
         let pi = case.n_present as f64 / n as f64;
         let record = Record::ErrorTotals {
             encounters: n,
-            base_rate: BaseRateKnowledge::Known,
+            base_rate: BaseRate::Known,
         };
         let block = &cells(record, &case, pi)[0];
         let (fa, miss) = (block[0], block[1]);
@@ -161,7 +161,7 @@ fn simulated_error_totals_follow_the_golden_pmf() {
             let pi = case.n_present as f64 / n as f64;
             let record = Record::ErrorTotals {
                 encounters: n,
-                base_rate: BaseRateKnowledge::Known,
+                base_rate: BaseRate::Known,
             };
             let block = &cells(record, case, pi)[0];
             let mut out = [0u64; 3];

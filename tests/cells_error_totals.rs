@@ -4,12 +4,12 @@
 use vigil::cells::identifiability::{EigenVerdict, assess};
 use vigil::cells::information::{expected_information, precision};
 use vigil::cells::observation_model::ObservationModel;
-use vigil::cells::spec::{BaseRateKnowledge, ConditionSpec, Record};
+use vigil::cells::spec::{BaseRate, ConditionSpec, Record};
 use vigil::model::normal::{cdf, pdf};
 
 mod common;
 
-fn model(knowledge: BaseRateKnowledge, n: u64, d: f64, c: f64, pi: f64) -> ObservationModel {
+fn model(knowledge: BaseRate, n: u64, d: f64, c: f64, pi: f64) -> ObservationModel {
     let rec = Record::ErrorTotals {
         encounters: n,
         base_rate: knowledge,
@@ -48,7 +48,7 @@ fn known_base_rate_information_matches_hand_delta_method() {
         (40, 0.7, -0.4, 0.5),
         (500, 2.5, 0.9, 0.1),
     ] {
-        let m = model(BaseRateKnowledge::Known, n, d, c, pi);
+        let m = model(BaseRate::Known, n, d, c, pi);
         let theta = m.hypothesised_theta();
         let info = expected_information(&m, &theta, &m.block_sizes()).unwrap();
         let hand = hand_information(n as f64, d, c, pi);
@@ -73,7 +73,7 @@ fn golden_error_totals_information() {
     for case in cases {
         let (d, c, pi) = (num(&case["d_prime"]), num(&case["c"]), num(&case["pi"]));
         let n = case["N"].as_u64().expect("N");
-        let m = model(BaseRateKnowledge::Known, n, d, c, pi);
+        let m = model(BaseRate::Known, n, d, c, pi);
         let theta = m.hypothesised_theta();
         let info = expected_information(&m, &theta, &m.block_sizes()).unwrap();
         let p = precision(&m, &theta, &info).unwrap().unwrap();
@@ -100,7 +100,7 @@ fn golden_error_totals_information() {
 
 #[test]
 fn unknown_base_rate_is_not_identified_with_one_null_direction() {
-    let m = model(BaseRateKnowledge::Unknown, 200, 1.5, 0.3, 0.3);
+    let m = model(BaseRate::Unknown, 200, 1.5, 0.3, 0.3);
     let theta = m.hypothesised_theta();
     let info = expected_information(&m, &theta, &m.block_sizes()).unwrap();
     let id = assess(&info, m.parameters().names()).unwrap();
@@ -123,7 +123,7 @@ fn unknown_base_rate_is_not_identified_with_one_null_direction() {
 fn census_identifies_and_larger_census_shrinks_the_errors() {
     let mut last = (f64::INFINITY, f64::INFINITY);
     for size in [50, 200, 1000] {
-        let m = model(BaseRateKnowledge::Census(size), 200, 1.5, 0.3, 0.3);
+        let m = model(BaseRate::Census(size), 200, 1.5, 0.3, 0.3);
         let theta = m.hypothesised_theta();
         let info = expected_information(&m, &theta, &m.block_sizes()).unwrap();
         let id = assess(&info, m.parameters().names()).unwrap();
@@ -139,7 +139,7 @@ fn census_identifies_and_larger_census_shrinks_the_errors() {
         last = (sd, sc);
     }
     // With π known the SEs are smaller still (the limit of an infinite census).
-    let known = model(BaseRateKnowledge::Known, 200, 1.5, 0.3, 0.3);
+    let known = model(BaseRate::Known, 200, 1.5, 0.3, 0.3);
     let theta = known.hypothesised_theta();
     let info = expected_information(&known, &theta, &known.block_sizes()).unwrap();
     let p = precision(&known, &theta, &info).unwrap().unwrap();
@@ -159,7 +159,7 @@ fn two_condition_census_design_end_to_end() {
     let totals = |name: &str, c: f64, pi: f64| {
         let rec = Record::ErrorTotals {
             encounters: 150,
-            base_rate: BaseRateKnowledge::Census(80),
+            base_rate: BaseRate::Census(80),
         };
         let mut spec = ConditionSpec::yes_no(name, rec, 1.5, c, pi);
         spec.roles.d_prime = Role::Shared;

@@ -6,14 +6,14 @@ use vigil::cells::likelihood::Counts;
 use vigil::cells::newton::{FitOptions, Start, StopReason, fit};
 use vigil::cells::observation_model::ObservationModel;
 use vigil::cells::profile::{Bound, ProfileOptions, ProfileTarget, profile_interval};
-use vigil::cells::spec::{BaseRateKnowledge, ConditionSpec, Record};
+use vigil::cells::spec::{BaseRate, ConditionSpec, Record};
 
 #[test]
 fn not_identified_design_gives_an_unbounded_range() {
     // Invented counts (demo data): 200 encounters, 30 false alarms, 25 misses, π unknown.
     let rec = Record::ErrorTotals {
         encounters: 200,
-        base_rate: BaseRateKnowledge::Unknown,
+        base_rate: BaseRate::Unknown,
     };
     let model =
         ObservationModel::new(vec![ConditionSpec::yes_no("field", rec, 1.5, 0.3, 0.3)]).unwrap();

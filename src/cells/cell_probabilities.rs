@@ -197,13 +197,13 @@ pub fn cell_probabilities(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::cells::spec::{BaseRateKnowledge, ConditionSpec, Record};
+    use crate::cells::spec::{BaseRate, ConditionSpec, Record};
 
     #[test]
     fn error_totals_cells_sum_to_one_with_zero_gradient_sum() {
         let rec = Record::ErrorTotals {
             encounters: 60,
-            base_rate: BaseRateKnowledge::Census(40),
+            base_rate: BaseRate::Census(40),
         };
         let model =
             ObservationModel::new(vec![ConditionSpec::yes_no("f", rec, 1.2, 0.4, 0.3)]).unwrap();

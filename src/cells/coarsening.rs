@@ -7,7 +7,7 @@
 //! Response totals (K = 2): [πH + (1−π)F, π(1−H) + (1−π)(1−F)]. A census adds [π, 1−π] (n = M).
 
 use crate::cells::full_table::Class;
-use crate::cells::spec::{BaseRateKnowledge, ConditionSpec, Record};
+use crate::cells::spec::{ConditionSpec, Record};
 
 /// Multiplier of a term.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -159,7 +159,7 @@ pub fn blocks_for(condition: usize, spec: &ConditionSpec) -> Vec<Block> {
         n: encounters as f64,
         cells,
     }];
-    if let BaseRateKnowledge::Census(m) = knowledge {
+    if let crate::vocab::BaseRate::Census(m) = knowledge {
         let constant = |weight| Term {
             source: Source::Constant,
             weight,
@@ -186,7 +186,7 @@ mod tests {
     fn error_totals_with_census_give_two_blocks() {
         let rec = Record::ErrorTotals {
             encounters: 80,
-            base_rate: BaseRateKnowledge::Census(200),
+            base_rate: crate::vocab::BaseRate::Census(200),
         };
         let spec = ConditionSpec::yes_no("field", rec, 1.5, 0.2, 0.3);
         let blocks = blocks_for(4, &spec);

@@ -192,12 +192,12 @@ pub fn precision(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::cells::spec::{BaseRateKnowledge, ConditionSpec, NaturalValues, Record};
+    use crate::cells::spec::{BaseRate, ConditionSpec, NaturalValues, Record};
 
     fn two_condition_model() -> ObservationModel {
         let rec = Record::ErrorTotals {
             encounters: 120,
-            base_rate: BaseRateKnowledge::Census(80),
+            base_rate: BaseRate::Census(80),
         };
         let rating = ConditionSpec::rating(
             "rating",

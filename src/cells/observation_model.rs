@@ -143,9 +143,9 @@ pub fn check_block_sizes(sizes: &[f64], blocks: usize) -> Result<(), InputError>
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::cells::spec::{BaseRateKnowledge, BaseRateLink, Record, Role};
+    use crate::cells::spec::{BaseRate, BaseRateLink, Record, Role};
 
-    fn totals(name: &str, knowledge: BaseRateKnowledge) -> ConditionSpec {
+    fn totals(name: &str, knowledge: BaseRate) -> ConditionSpec {
         let rec = Record::ErrorTotals {
             encounters: 100,
             base_rate: knowledge,
@@ -155,8 +155,8 @@ mod tests {
 
     #[test]
     fn names_follow_conditions_and_sharing() {
-        let mut a = totals("low", BaseRateKnowledge::Census(50));
-        let mut b = totals("high", BaseRateKnowledge::Unknown);
+        let mut a = totals("low", BaseRate::Census(50));
+        let mut b = totals("high", BaseRate::Unknown);
         a.roles.d_prime = Role::Shared;
         b.roles.d_prime = Role::Shared;
         let m = ObservationModel::new(vec![a, b]).unwrap();
@@ -170,13 +170,13 @@ mod tests {
 
     #[test]
     fn invalid_maps_are_reported() {
-        let mut a = totals("a", BaseRateKnowledge::Unknown);
+        let mut a = totals("a", BaseRate::Unknown);
         a.roles.sigma = Role::Free;
         assert!(matches!(
             ObservationModel::new(vec![a]),
             Err(SpecError::SigmaFreeForYesNo { .. })
         ));
-        let mut k = totals("k", BaseRateKnowledge::Known);
+        let mut k = totals("k", BaseRate::Known);
         k.roles.base_rate = BaseRateLink::Shared;
         let err = ObservationModel::new(vec![k]).unwrap_err();
         assert!(err.to_string().contains("known"), "{err}");
@@ -195,8 +195,8 @@ mod tests {
             ObservationModel::new(vec![f]),
             Err(SpecError::NothingToShare { .. })
         ));
-        let mut x = totals("x", BaseRateKnowledge::Unknown);
-        let mut y = totals("y", BaseRateKnowledge::Unknown);
+        let mut x = totals("x", BaseRate::Unknown);
+        let mut y = totals("y", BaseRate::Unknown);
         y.values.d_prime = 2.0;
         x.roles.d_prime = Role::Shared;
         y.roles.d_prime = Role::Shared;
@@ -204,8 +204,8 @@ mod tests {
         assert!(matches!(err, SpecError::SharedValuesDiffer { .. }), "{err}");
         assert!(matches!(
             ObservationModel::new(vec![
-                totals("d", BaseRateKnowledge::Known),
-                totals("d", BaseRateKnowledge::Known)
+                totals("d", BaseRate::Known),
+                totals("d", BaseRate::Known)
             ]),
             Err(SpecError::DuplicateName { .. })
         ));

@@ -61,24 +61,7 @@ impl Roles {
     }
 }
 
-/// What the analyst knows of the base rate π (probability that an encounter holds the stimulus).
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum BaseRateKnowledge {
-    /// π is known and held at the condition's stated value.
-    Known,
-    /// π is estimated, helped by an independent census of this many encounters, each counted as
-    /// "stimulus present" with probability π.
-    Census(u64),
-    /// π is estimated from the behavioural record alone.
-    Unknown,
-}
-
-impl BaseRateKnowledge {
-    /// True when π is a free parameter.
-    pub fn is_free(self) -> bool {
-        !matches!(self, BaseRateKnowledge::Known)
-    }
-}
+pub use crate::vocab::BaseRate;
 
 /// What was recorded for a condition: how the full stimulus × response table is coarsened.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -90,18 +73,18 @@ pub enum Record {
     /// misses and correct responses (summed over classes) are recorded.
     ErrorTotals {
         encounters: u64,
-        base_rate: BaseRateKnowledge,
+        base_rate: BaseRate,
     },
     /// Yes/no only: `encounters` encounters; only how often the subject said yes.
     ResponseTotals {
         encounters: u64,
-        base_rate: BaseRateKnowledge,
+        base_rate: BaseRate,
     },
 }
 
 impl Record {
     /// The base-rate knowledge, or `None` for records where π is not part of the model.
-    pub fn base_rate_knowledge(&self) -> Option<BaseRateKnowledge> {
+    pub fn base_rate_knowledge(&self) -> Option<BaseRate> {
         match *self {
             Record::Full { .. } => None,
             Record::ErrorTotals { base_rate, .. } | Record::ResponseTotals { base_rate, .. } => {

@@ -64,18 +64,7 @@ impl RecordKind {
     }
 }
 
-/// What the analysis knows of the base rate (share of encounters with the stimulus) in a
-/// record that does not fix present and absent trial counts.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(tag = "kind", content = "encounters", rename_all = "kebab-case")]
-pub enum BaseRate {
-    /// Known: fixed by the experimenter.
-    Known,
-    /// Estimated, helped by an independent census of this many encounters.
-    Census(u64),
-    /// Estimated from the behavioural record alone.
-    Unknown,
-}
+pub use crate::vocab::BaseRate;
 
 /// A parameter that linked conditions may share.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]

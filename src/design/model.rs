@@ -3,13 +3,11 @@
 //! This is the one place where plan-level designs meet the model's condition specs: the
 //! fits, the expected information and the simulation of coarse records all start here.
 
-use super::{BaseRate, Design, RecordKind, Response, SharedParameter, split_trials};
+use super::{Design, RecordKind, Response, SharedParameter, split_trials};
 use crate::cells::coarsening::BlockKind;
 use crate::cells::error::SpecError;
 use crate::cells::observation_model::ObservationModel;
-use crate::cells::spec::{
-    BaseRateKnowledge, BaseRateLink, ConditionSpec, Lapse, NaturalValues, Record, Role, Roles,
-};
+use crate::cells::spec::{BaseRateLink, ConditionSpec, Lapse, NaturalValues, Record, Role, Roles};
 use crate::model::{LapseSpec, Observer};
 
 /// The observation model of `design` with `trials` trials (or encounters) per condition.
@@ -69,11 +67,7 @@ pub fn condition_specs(design: &Design, observer: &Observer, trials: u32) -> Vec
             BaseRateLink::PerCondition
         },
     };
-    let knowledge = match design.base_rate {
-        BaseRate::Known => BaseRateKnowledge::Known,
-        BaseRate::Census(m) => BaseRateKnowledge::Census(m),
-        BaseRate::Unknown => BaseRateKnowledge::Unknown,
-    };
+    let knowledge = design.base_rate;
     design
         .conditions
         .iter()

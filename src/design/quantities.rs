@@ -78,9 +78,9 @@ pub fn quantity_label(q: &ReportedQuantity) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::cells::spec::{BaseRateKnowledge, Record};
+    use crate::cells::spec::{BaseRate, Record};
 
-    fn totals(name: &str, knowledge: BaseRateKnowledge) -> ConditionSpec {
+    fn totals(name: &str, knowledge: BaseRate) -> ConditionSpec {
         let rec = Record::ErrorTotals {
             encounters: 100,
             base_rate: knowledge,
@@ -97,11 +97,8 @@ mod tests {
 
     #[test]
     fn single_condition_quantities_carry_no_label() {
-        assert_eq!(
-            labels(&[totals("a", BaseRateKnowledge::Known)]),
-            ["d′", "c"]
-        );
-        let q = reported_quantities(&[totals("a", BaseRateKnowledge::Unknown)]);
+        assert_eq!(labels(&[totals("a", BaseRate::Known)]), ["d′", "c"]);
+        let q = reported_quantities(&[totals("a", BaseRate::Unknown)]);
         assert_eq!(q.len(), 3);
         assert_eq!(q[2].quantity, Quantity::BaseRate);
         assert!((q[2].truth - 0.25).abs() < 1e-15);
@@ -110,8 +107,8 @@ mod tests {
 
     #[test]
     fn shared_parameters_appear_once_and_unlabelled() {
-        let mut a = totals("low", BaseRateKnowledge::Census(50));
-        let mut b = totals("high", BaseRateKnowledge::Census(50));
+        let mut a = totals("low", BaseRate::Census(50));
+        let mut b = totals("high", BaseRate::Census(50));
         for s in [&mut a, &mut b] {
             s.roles.d_prime = Role::Shared;
             s.roles.base_rate = BaseRateLink::Shared;
@@ -121,8 +118,8 @@ mod tests {
 
     #[test]
     fn separate_parameters_are_labelled_by_condition() {
-        let a = totals("low", BaseRateKnowledge::Known);
-        let b = totals("high", BaseRateKnowledge::Unknown);
+        let a = totals("low", BaseRate::Known);
+        let b = totals("high", BaseRate::Unknown);
         let q = reported_quantities(&[a, b]);
         let got: Vec<(usize, String)> =
             q.iter().map(|x| (x.condition, quantity_label(x))).collect();
