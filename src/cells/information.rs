@@ -33,7 +33,8 @@ pub fn expected_information(
         .iter()
         .map(|c| vec![0.0; (c.categories + 2).pow(2)])
         .collect();
-    Workspace::default().visit(model, theta, false, |c| {
+    let mut ws = Workspace::borrow_spare();
+    ws.visit(model, theta, false, |c| {
         let n = sizes[c.block];
         // A cell of zero probability carries no information in the limit (∂p²/p → 0 in the
         // Gaussian tails), so it is skipped rather than divided by.
@@ -42,6 +43,7 @@ pub fn expected_information(
         }
         add_outer(&mut local[c.condition], c.grad, n / c.value);
     });
+    ws.give_back();
     let dim = model.dim();
     let mut info = DMatrix::zeros(dim, dim);
     for (j, m) in local.iter().enumerate() {

@@ -138,14 +138,16 @@ pub(crate) fn derivatives_with(
     theta: &[f64],
 ) -> LogLikelihood {
     let conditions = model.conditions();
-    let mut local_g: Vec<Vec<f64>> = conditions
-        .iter()
-        .map(|c| vec![0.0; c.categories + 2])
-        .collect();
-    let mut local_h: Vec<Vec<f64>> = conditions
-        .iter()
-        .map(|c| vec![0.0; (c.categories + 2).pow(2)])
-        .collect();
+    let mut local_g = std::mem::take(&mut ws.local_g);
+    let mut local_h = std::mem::take(&mut ws.local_h);
+    local_g.resize_with(conditions.len(), Vec::new);
+    local_h.resize_with(conditions.len(), Vec::new);
+    for (c, (g, h)) in conditions.iter().zip(local_g.iter_mut().zip(&mut local_h)) {
+        g.clear();
+        g.resize(c.categories + 2, 0.0);
+        h.clear();
+        h.resize((c.categories + 2).pow(2), 0.0);
+    }
     let mut value = 0.0;
     ws.visit(model, theta, true, |c| {
         let x = counts.cells[c.block][c.cell];
@@ -179,6 +181,8 @@ pub(crate) fn derivatives_with(
         scatter_vector(map.slots(j), &local_g[j], 1.0, &mut gradient);
         scatter_matrix(map.slots(j), &local_h[j], 1.0, &mut hessian);
     }
+    ws.local_g = local_g;
+    ws.local_h = local_h;
     if !value.is_finite() {
         gradient.fill(f64::NAN);
         hessian.fill(f64::NAN);

@@ -118,7 +118,9 @@ pub fn fit(
 
 /// A result that stops where it starts, for a fit that is not attempted.
 fn unfitted(model: &ObservationModel, counts: &Counts, theta: Vec<f64>, stop: StopReason) -> Fit {
-    let d = derivatives_with(&mut Workspace::default(), model, counts, &theta);
+    let mut ws = Workspace::borrow_spare();
+    let d = derivatives_with(&mut ws, model, counts, &theta);
+    ws.give_back();
     Fit {
         max_abs_gradient: d.gradient.iter().fold(0.0, |m: f64, g| m.max(g.abs())),
         log_likelihood: d.value,
@@ -138,7 +140,7 @@ pub(crate) fn maximise(
     free: &[bool],
     options: &FitOptions,
 ) -> Fit {
-    let mut ws = Workspace::default();
+    let mut ws = Workspace::borrow_spare();
     let mut theta = theta0;
     let mut d = derivatives_with(&mut ws, model, counts, &theta);
     if !d.value.is_finite() {
@@ -205,6 +207,7 @@ pub(crate) fn maximise(
             }
         }
     };
+    ws.give_back();
     let max_abs_gradient = idx.iter().map(|&i| d.gradient[i].abs()).fold(0.0, f64::max);
     let LogLikelihood { value, hessian, .. } = d;
     Fit {
