@@ -43,29 +43,54 @@
 //!
 //! // Expected information at 40 trials: asymptotic SEs and the identifiability verdict.
 //! let info = vigil::expected_information(&plan, 0, 40)?;
-//! assert_eq!(info.verdict, vigil::cells::verdict::Verdict::Identified);
+//! assert_eq!(info.verdict, vigil::Verdict::Identified);
 //! # Ok::<(), Box<dyn std::error::Error>>(())
 //! ```
 
+// The layers below are public so that the integration tests and benchmarks can check each
+// computation against its outside reference; they are hidden from the documentation and carry
+// no stability promise. The supported API is the functions and re-exports of this file.
+#[doc(hidden)]
 pub mod analytic;
+#[doc(hidden)]
 pub mod cells;
+#[doc(hidden)]
 pub mod commands;
+#[doc(hidden)]
 pub mod design;
+#[doc(hidden)]
 pub mod engine;
+#[doc(hidden)]
 pub mod evaluate;
+#[doc(hidden)]
 pub mod fit;
+#[doc(hidden)]
 pub mod groups;
+#[doc(hidden)]
 pub mod infer;
+#[doc(hidden)]
 pub mod model;
+#[doc(hidden)]
 pub mod plan;
+#[doc(hidden)]
 pub mod power;
+#[doc(hidden)]
 pub mod progress;
+#[doc(hidden)]
 pub mod report;
+#[doc(hidden)]
 pub mod search;
+#[doc(hidden)]
 pub mod simulate;
+#[doc(hidden)]
 pub mod spacing;
 pub mod vocab;
 
+pub use analytic::information::{InformationError, ScenarioInformation};
+pub use cells::verdict::Verdict;
+pub use engine::ScenarioSummary;
+pub use evaluate::RunError;
+pub use fit::YesNoFit;
 pub use plan::{Plan, PlanError};
 
 /// Reads and validates a plan file (see `docs/plan-format.md`).
@@ -80,7 +105,7 @@ pub fn load_plan_text(path: &std::path::Path, text: &str) -> Result<Plan, PlanEr
 
 /// Simulates every scenario of `plan` (Monte Carlo, the plan's seed and experiments) and
 /// returns one typed summary per design × trial count, in plan order.
-pub fn run(plan: &Plan) -> Result<Vec<engine::ScenarioSummary>, evaluate::RunError> {
+pub fn run(plan: &Plan) -> Result<Vec<ScenarioSummary>, RunError> {
     evaluate::run_plan(plan, evaluate::RunOptions::default(), &|_| {})
 }
 
@@ -93,7 +118,7 @@ pub fn fit_yes_no_counts(
     false_alarms: u32,
     n_absent: u32,
     correction: vocab::RateCorrection,
-) -> Option<fit::YesNoFit> {
+) -> Option<YesNoFit> {
     fit::fit_yes_no(hits, n_present, false_alarms, n_absent, correction)
 }
 
@@ -103,10 +128,10 @@ pub fn expected_information(
     plan: &Plan,
     design: usize,
     trials: u32,
-) -> Result<analytic::information::ScenarioInformation, analytic::information::InformationError> {
+) -> Result<ScenarioInformation, InformationError> {
     let d = plan
         .designs()
         .get(design)
-        .ok_or(analytic::information::InformationError::NoSuchDesign { index: design })?;
+        .ok_or(InformationError::NoSuchDesign { index: design })?;
     analytic::information::DesignInformation::new(plan, d)?.at(trials, false)
 }
