@@ -18,6 +18,7 @@ use crate::cells::spec::{ConditionSpec, Record};
 use crate::design::model::{condition_specs, lapse, truth_specs};
 use crate::design::{Design, Response, Route};
 use crate::model::Observer;
+use crate::simulate::BinomialTable;
 use crate::simulate::ReplicateRng;
 use crate::vocab::RateCorrection;
 
@@ -35,6 +36,12 @@ pub struct ScenarioKernel {
     sampler: TableSampler,
     estimator: Estimator,
     tests: Option<HypothesisTests>,
+    /// The sampler's present and absent binomial tables when the closed-form route runs
+    /// without tests: the replicate then draws hits and false alarms straight from them, in the
+    /// sampler's block order (so the same stream gives the same counts), without the general
+    /// table buffer. The closed-form route's hot loop; measured 1.28× more instructions than
+    /// the direct draw before this.
+    yes_no_draw: Option<[BinomialTable; 2]>,
 }
 
 /// The fitting settings a scenario takes from the plan.
@@ -86,11 +93,29 @@ impl ScenarioKernel {
             }
             _ => Estimator::General(GeneralEstimator::new(fit, settings.z_crit)),
         };
-        Ok(Self {
+        Ok(Self::assemble(sampler, estimator, tests))
+    }
+
+    fn assemble(
+        sampler: TableSampler,
+        estimator: Estimator,
+        tests: Option<HypothesisTests>,
+    ) -> Self {
+        let yes_no_draw = match (&estimator, &tests) {
+            (Estimator::YesNo(_), None) if sampler.block_count() == 2 => {
+                match (sampler.binomial_table(0), sampler.binomial_table(1)) {
+                    (Some(present), Some(absent)) => Some([present.clone(), absent.clone()]),
+                    _ => None,
+                }
+            }
+            _ => None,
+        };
+        Self {
             sampler,
             estimator,
             tests,
-        })
+            yes_no_draw,
+        }
     }
 
     /// A single yes/no table of `observer` with `n_present`/`n_absent` trials on the
@@ -117,17 +142,14 @@ impl ScenarioKernel {
         spec.values.sigma = observer.sigma;
         spec.lapse = observer.lapse.map(|l| lapse(l, 2, 1));
         let sampler = TableSampler::new(&ObservationModel::new(vec![spec])?)?;
-        Ok(Self {
-            sampler,
-            estimator: Estimator::YesNo(YesNoEstimator::new(
-                [observer.d_prime, observer.criterion],
-                n_present,
-                n_absent,
-                correction,
-                z_crit,
-            )),
-            tests: None,
-        })
+        let estimator = Estimator::YesNo(YesNoEstimator::new(
+            [observer.d_prime, observer.criterion],
+            n_present,
+            n_absent,
+            correction,
+            z_crit,
+        ));
+        Ok(Self::assemble(sampler, estimator, None))
     }
 
     /// The scenario's sampler (exact enumeration reads its binomial tables).
@@ -163,6 +185,14 @@ impl Kernel for ScenarioKernel {
 
     #[inline]
     fn replicate(&self, rng: &mut ReplicateRng, tally: &mut EstimateTally) {
+        if let (Some([present, absent]), Estimator::YesNo(e)) = (&self.yes_no_draw, &self.estimator)
+        {
+            // Block 0 (present trials) then block 1 (absent trials), as `TableSampler::draw`.
+            let hits = present.sample(rng);
+            let false_alarms = absent.sample(rng);
+            e.record(hits, false_alarms, 1.0, tally);
+            return;
+        }
         // Two blocks of two cells (yes/no) or of K cells (rating) fit on the stack.
         let mut buffer = [0u64; 2 * crate::cells::spec::MAX_CATEGORIES];
         let mut heap;
