@@ -88,9 +88,10 @@ impl Moments {
 /// when the estimates are far from normal (rating estimators have kurtosis 5–24).
 ///
 /// Mean and second sum are exactly those of the inner [`Moments`] (same bits); the third and
-/// fourth sums follow Pébay's (2008) weighted one-pass and pairwise-merge formulas (Sandia
-/// report SAND2008-6212, eqs. 3.1 and 3.3 with weights as counts), so chunk tallies merged in
-/// a fixed order give fixed bits for any thread count.
+/// fourth sums follow Pébay's (2008) one-pass and pairwise-merge formulas (Sandia report
+/// SAND2008-6212 [memory for the report]; weights enter as counts, and the unit tests check
+/// the sums against two-pass ones at every split), so chunk tallies merged in a fixed order
+/// give fixed bits for any thread count.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
 pub struct FourthMoments {
     base: Moments,
