@@ -32,8 +32,8 @@ fn se(plan: &Plan, trials: u32, q: Quantity) -> f64 {
         .unwrap()
 }
 
-/// Gourevitch & Galanter (1967) asymptotic variances of a full yes/no record, [library]
-/// values from /work/shared/references.md (SciPy 1.17; the formula itself from memory):
+/// Gourevitch & Galanter (1967) asymptotic variances of a full yes/no record, check
+/// values computed with SciPy 1.17 (the formula itself from memory):
 /// Var(d′) = H(1−H)/(N_S φ(z_H)²) + F(1−F)/(N_N φ(z_F)²), Var(c) = Var(d′)/4.
 #[test]
 fn full_record_matches_gourevitch_galanter() {

@@ -19,8 +19,8 @@ fn z(p: f64) -> f64 {
     normal::z(p).unwrap()
 }
 
-/// Gourevitch & Galanter (1967), Psychometrika 32:25–33 [memory for the paper; formula as in
-/// references.md]: Var z_H = H(1−H)/(N_S φ(z_H)²), Var d′ = Var z_H + Var z_F, Var c = Var d′/4,
+/// Gourevitch & Galanter (1967), Psychometrika 32:25–33 [memory for the paper and the
+/// formula]: Var z_H = H(1−H)/(N_S φ(z_H)²), Var d′ = Var z_H + Var z_F, Var c = Var d′/4,
 /// Cov(d′, c) = −½[Var z_H − Var z_F].
 fn gourevitch_galanter(h: f64, f: f64, ns: f64, nn: f64) -> (f64, f64, f64) {
     let var_z = |p: f64, n: f64| p * (1.0 - p) / (n * normal::pdf(z(p)).powi(2));
@@ -41,7 +41,7 @@ fn expected_covariance(h: f64, f: f64, ns: u64, nn: u64) -> nalgebra::DMatrix<f6
 
 #[test]
 fn expected_information_reproduces_gourevitch_galanter() {
-    // Check values: references.md, "Asymptotic variance" table [library: SciPy 1.17].
+    // Check values of the Gourevitch & Galanter variances computed with SciPy 1.17.
     for (h, f, ns, nn, var_d, var_c) in [
         (0.8, 0.2, 50, 50, 0.081655, 0.020414),
         (0.7, 0.1, 100, 100, 0.046592, 0.011648),
@@ -72,7 +72,8 @@ fn expected_information_reproduces_gourevitch_galanter() {
 #[test]
 fn general_fit_equals_the_closed_form() {
     // Closed form d′ = z(H) − z(F), c = −½[z(H) + z(F)] (Macmillan & Creelman 2005). The second
-    // case is printed to 3 decimals in references.md (d′ 1.805952, c 0.378576; library).
+    // case is printed to 3 decimals in W. Schneider, "Short notes on the theory of signal
+    // detection" (d′ 1.805952, c 0.378576 from SciPy 1.17).
     for (hits, ns, fas, nn) in [
         (40.0, 50, 10.0, 50),
         (70.0, 100, 10.0, 100),

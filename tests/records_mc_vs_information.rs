@@ -1,6 +1,6 @@
 //! For each record type, the Monte Carlo SD of d̂′ and ĉ approaches the SE the expected
 //! Fisher information predicts at large counts (asymptotic theory of maximum likelihood,
-//! common practice). Threshold: 5 Monte Carlo SEs of the SD plus 3% for the O(1/n) gap.
+//! common practice). Threshold: 4 Monte Carlo SEs of the SD plus 1% for the O(1/n) gap.
 
 use std::path::Path;
 use vigil::evaluate::{RunOptions, run_plan};
@@ -18,7 +18,14 @@ fn check(record: &str) {
     for q in [Quantity::DPrime, Quantity::Criterion] {
         let x = s.quantity(q).unwrap();
         let asymptotic = x.asymptotic_se.expect("identified");
-        let tol = 5.0 * x.sd.mc_se + 0.03 * asymptotic;
+        // 4 Monte Carlo SEs of the SD (fourth-moment SE; two-sided false alarm ~6e-5 per
+        // check, 8 checks) plus 1% for the finite-sample gap: the ML variance's next term is
+        // O(1/n) relative — parts per thousand at 3000 trials for the full record, more for
+        // coarse records that carry less information per trial. Measured at seed 8: every
+        // SD within 1.9 MC SEs of its prediction (largest: 2.5% above it, 1.8 MC SEs, error
+        // totals with a census — within Monte Carlo error, not a gap). Before:
+        // 5 MC SEs + 3%.
+        let tol = 4.0 * x.sd.mc_se + 0.01 * asymptotic;
         assert!(
             (x.sd.value - asymptotic).abs() < tol,
             "{record:?} {q:?}: MC SD {} vs asymptotic {asymptotic}",

@@ -114,7 +114,8 @@ fn monte_carlo_means_match_exact_enumeration_at_small_counts() {
     }
 }
 
-/// references.md, exact sampling distribution (Miller 1996) [library: scipy.stats.binom]:
+/// Exact sampling distribution by enumeration (Miller 1996, Percept. Psychophys. 58:65–72
+/// [memory]), check values computed with scipy.stats.binom (SciPy 1.17):
 /// true H = .8, F = .2 (d′ = 1.683242, c = 0).
 #[test]
 fn exact_enumeration_matches_published_check_values() {

@@ -244,7 +244,8 @@ mod tests {
     use super::*;
 
     // With σ = 1 and K = 2, H = Φ(d′/2 − c), F = Φ(−d′/2 − c) (project convention; Macmillan &
-    // Creelman 2005). H = .70, F = .10 gives d′ = 1.805952, c = 0.378576 (references.md, library).
+    // Creelman 2005). H = .70, F = .10 gives d′ = 1.805952, c = 0.378576 (SciPy 1.17;
+    // printed to 3 decimals in W. Schneider, "Short notes on the theory of signal detection").
     #[test]
     fn yes_no_rates_match_the_convention() {
         let mut t = TableJets::default();

@@ -1,6 +1,6 @@
 //! Streaming tallies of fitted estimates: memory is fixed, whatever the replicate count.
 
-use crate::infer::{CoMoments, Moments};
+use crate::infer::{CoMoments, FourthMoments, Moments};
 use crate::vocab::Quantity;
 use serde::Serialize;
 
@@ -14,7 +14,10 @@ pub struct QuantityTally {
     pub truth: f64,
     /// Critical value of the Wald interval, z_{1−(1−level)/2}.
     pub z_crit: f64,
-    pub estimate: Moments,
+    /// With third and fourth sums: the SD's Monte Carlo error needs the kurtosis.
+    pub estimate: FourthMoments,
+    /// Squared errors about the truth; their variance is the fourth moment about the truth,
+    /// which the RMSE's Monte Carlo error needs.
     pub squared_error: Moments,
     pub se: Moments,
     pub width: Moments,
@@ -29,7 +32,7 @@ impl QuantityTally {
             condition: None,
             truth,
             z_crit,
-            estimate: Moments::default(),
+            estimate: FourthMoments::default(),
             squared_error: Moments::default(),
             se: Moments::default(),
             width: Moments::default(),

@@ -97,9 +97,9 @@ pub struct RowTooSmall {
 mod tests {
     use super::*;
 
-    // Rules as stated in references.md: Macmillan & Kaplan (1985) 1/(2N), N = 40 gives
+    // The rules: Macmillan & Kaplan (1985, Psychol. Bull. 98:185–199) 1/(2N), N = 40 gives
     // F = 0.0125 [memory for the paper, rule confirmed in secondary sources]; Hautus (1995)
-    // log-linear adds ½ to every cell [memory].
+    // (Behav. Res. Methods Instrum. Comput. 27:46–51) log-linear adds ½ to every cell [memory].
     #[test]
     fn half_n_moves_only_extremes() {
         assert_eq!(RateCorrection::HalfN.rate(0, 40), Some(0.0125));

@@ -106,7 +106,8 @@ pub fn fit_yes_no(
 mod tests {
     use super::*;
 
-    // references.md, rates of 0 or 1 (SciPy 1.17 values): 50/50 hits, 0/50 false alarms.
+    // Rates of 0 or 1 under the 1/(2N) (Macmillan & Kaplan 1985) and log-linear (Hautus 1995)
+    // rules, check values computed with SciPy 1.17: 50/50 hits, 0/50 false alarms.
     #[test]
     fn corrected_worked_examples() {
         let cases = [

@@ -14,14 +14,15 @@ use super::approximation::t_quantile;
 use super::hypotheses::GroupTest;
 use super::population::{Deviation, Population};
 use crate::engine::parallel::Kernel;
-use crate::infer::Moments;
+use crate::infer::{FourthMoments, Moments};
 use crate::simulate::ReplicateRng;
 use rand::{Rng, SeedableRng};
 
 /// Running sums for an estimate of a population mean.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct PrecisionTally {
-    pub estimate: Moments,
+    /// With third and fourth sums, for the SD's Monte Carlo error.
+    pub estimate: FourthMoments,
     pub se: Moments,
     pub half_width: Moments,
     pub covered: u64,

@@ -93,7 +93,6 @@ pub fn share(x: u64, n: u64) -> Share {
 }
 
 fn precision(t: &PrecisionTally, truth: f64) -> GroupPrecision {
-    let n = t.estimate.count() as f64;
     let sd = t.estimate.variance(false).sqrt();
     GroupPrecision {
         truth,
@@ -101,10 +100,10 @@ fn precision(t: &PrecisionTally, truth: f64) -> GroupPrecision {
             value: t.estimate.mean(),
             mc_se: t.estimate.mc_se(false),
         },
-        // Normal-theory MC error of an SD: SD/√(2(n − 1)).
+        // Fourth-moment MC error of an SD (`FourthMoments::sd_mc_se`), not normal theory.
         sd: Figure {
             value: sd,
-            mc_se: sd / (2.0 * (n - 1.0)).sqrt(),
+            mc_se: t.estimate.sd_mc_se(false),
         },
         mean_se: Figure {
             value: t.se.mean(),

@@ -19,7 +19,7 @@ pub mod wilson;
 pub use error::InferError;
 pub use group::{one_sample_t, paired_t, welch_t};
 pub use likelihood_ratio::{likelihood_ratio_test, signed_root_test};
-pub use moments::{CoMoments, Moments};
+pub use moments::{CoMoments, FourthMoments, Moments};
 pub use power::wald_power;
 pub use wald::{wald_interval, wald_test};
 pub use wilson::wilson_interval;

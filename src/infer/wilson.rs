@@ -48,7 +48,7 @@ pub fn wilson_interval(successes: u64, trials: u64, level: f64) -> Result<Interv
 mod tests {
     use super::*;
 
-    /// 95% intervals from /work/shared/references.md: formula Wilson (1927); values
+    /// 95% intervals: formula Wilson (1927, JASA 22:209–212); values
     /// computed with statsmodels 0.15 `proportion_confint(method="wilson")` and SciPy 1.17
     /// `binomtest(...).proportion_ci("wilson")`, printed to 6 decimals.
     #[test]

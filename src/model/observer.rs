@@ -106,7 +106,7 @@ impl YesNoMeasures {
 mod tests {
     use super::*;
 
-    // Worked examples, references.md: printed to 3 decimals in W. Schneider, "Short notes on
+    // Worked examples: printed to 3 decimals in W. Schneider, "Short notes on
     // the theory of signal detection"; full precision from SciPy 1.17 (tests/golden has more).
     #[test]
     fn worked_examples() {

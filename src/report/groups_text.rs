@@ -217,6 +217,9 @@ fn design_block(out: &mut String, r: &GroupReport, d: &DesignGroups) {
             format!("{:.3} · {:.1}%", s.mean_se.value, 100.0 * s.coverage.value)
         })
     );
+    for line in super::coverage_notes::group_notes(r, d) {
+        let _ = writeln!(out, "{line}");
+    }
     let dropped = d
         .cells
         .iter()

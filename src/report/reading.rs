@@ -78,13 +78,6 @@ pub fn reading(design: &Design, rows: &[&ScenarioSummary], level: f64) -> String
             identification_note(id)
         ));
     }
-    if let Some(s) = rows.iter().find(|s| undercovers(s, level)) {
-        parts.push(format!(
-            "intervals under-cover at {} trials ({:.1}% instead of {pct:.0}%)",
-            s.scenario.trials,
-            100.0 * worst_coverage(s)
-        ));
-    }
     format!("{}: {}.", design.name, parts.join("; "))
 }
 
@@ -92,15 +85,4 @@ fn half_width(s: &ScenarioSummary, q: Quantity) -> String {
     s.quantity(q)
         .map(|x| format!("{:.2}", x.mean_width.value / 2.0))
         .unwrap_or_else(|| "–".into())
-}
-
-fn undercovers(s: &ScenarioSummary, level: f64) -> bool {
-    s.quantities.iter().any(|q| q.coverage.high < level)
-}
-
-fn worst_coverage(s: &ScenarioSummary) -> f64 {
-    s.quantities
-        .iter()
-        .map(|q| q.coverage.value)
-        .fold(f64::INFINITY, f64::min)
 }

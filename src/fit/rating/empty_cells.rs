@@ -91,7 +91,7 @@ mod tests {
 
     // With K = 2 the half-count rule is the 1/(2N) rule (Macmillan & Kaplan 1985; common
     // practice): 50/50 hits becomes H = 1 − 1/100, 0/40 false alarms becomes F = 1/80 = 0.0125
-    // (the N = 40 example in references.md).
+    // (the N = 40 example; the rule as stated by Macmillan & Kaplan 1985 [memory]).
     #[test]
     fn half_count_with_two_categories_is_the_one_over_2n_rule() {
         let t =

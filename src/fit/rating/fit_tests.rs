@@ -31,7 +31,7 @@ fn expected_table(p: &RatingParams, trials: f64) -> RatingTable {
 // With K = 2 and σ = 1 the maximum-likelihood estimate is the closed form d′ = z(H) − z(F),
 // c = −[z(H) + z(F)]/2 (Macmillan & Creelman 2005), and the observed information at it gives
 // the asymptotic variances of Gourevitch & Galanter (1967, Psychometrika 32:25–33; formula from
-// memory, as in references.md): Var(d′) = H(1−H)/(N_s φ(z_H)²) + F(1−F)/(N_n φ(z_F)²),
+// memory): Var(d′) = H(1−H)/(N_s φ(z_H)²) + F(1−F)/(N_n φ(z_F)²),
 // Var(c) = Var(d′)/4.
 #[test]
 fn two_categories_with_fixed_sigma_give_the_closed_form_and_its_variances() {
@@ -58,14 +58,14 @@ fn two_categories_with_fixed_sigma_give_the_closed_form_and_its_variances() {
         let var_d = var_zh + var_zf;
         assert!((m.d_prime.se.powi(2) - var_d).abs() < 1e-6);
         assert!((m.c.se.powi(2) - var_d / 4.0).abs() < 1e-6);
-        // Cov(d′, c) = −½[Var z_H − Var z_F] (references.md, same source).
+        // Cov(d′, c) = −½[Var z_H − Var z_F] (same source, from memory).
         let corr = -0.5 * (var_zh - var_zf) / (m.d_prime.se * m.c.se);
         assert!((m.corr_d_prime_c - corr).abs() < 1e-6);
     }
 }
 
-// Check values from references.md, tagged [library] (SciPy 1.17), H/F with N_s/N_n trials:
-// Var(d′) and Var(c) to the 6 printed decimals.
+// Check values of the Gourevitch & Galanter (1967) variances computed with SciPy 1.17, H/F
+// with N_s/N_n trials: Var(d′) and Var(c) to 6 decimals.
 #[test]
 fn asymptotic_variances_match_the_reference_table() {
     let cases = [
@@ -80,8 +80,8 @@ fn asymptotic_variances_match_the_reference_table() {
     }
 }
 
-// d′ and c check values from references.md (printed to 3 decimals in W. Schneider's notes;
-// 6 decimals [library]).
+// d′ and c check values: printed to 3 decimals in W. Schneider, "Short notes on the theory
+// of signal detection"; 6 decimals computed with SciPy 1.17.
 #[test]
 fn yes_no_estimates_match_the_reference_table() {
     let cases = [
@@ -97,7 +97,7 @@ fn yes_no_estimates_match_the_reference_table() {
     }
 }
 
-// Corrected yes/no tables, check values from references.md [library]: the 1/(2N) rule
+// Corrected yes/no tables, check values computed with SciPy 1.17: the 1/(2N) rule
 // (Macmillan & Kaplan 1985) is HalfCount with K = 2, the log-linear rule (Hautus 1995) is
 // LogLinear.
 #[test]

@@ -167,7 +167,7 @@ mod tests {
         f: f64,
     }
 
-    /// Worked cases from /work/shared/references.md, "Ideal observer": formula from
+    /// Worked cases of the ideal observer: formula from
     /// Green & Swets 1966 (form from memory); numbers computed with SciPy 1.17, the
     /// first also matched by numerical maximisation. Printed to 6 decimals.
     #[allow(

@@ -76,7 +76,8 @@ mod tests {
 
     #[test]
     fn scan_agrees_with_observer_built_from_payoffs() {
-        // Worked case 3 of references.md: payoffs 10, 5, 1, 1 give R = 2/15.
+        // Worked case 3 (Green & Swets 1966 formula; SciPy 1.17 values): payoffs 10, 5, 1, 1
+        // give R = 2/15.
         let pay = Payoffs::new(10.0, 5.0, 1.0, 1.0).unwrap();
         let obs = IdealObserver::new(2.0, 0.1, pay).unwrap();
         let row = scan_payoff_ratios(2.0, 0.1, &[pay.ratio()]).unwrap()[0];
