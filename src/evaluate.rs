@@ -70,11 +70,13 @@ pub fn preflight(plan: &Plan, options: RunOptions) -> Result<(), RunError> {
                 design: design.name.clone(),
             });
         }
-        if !exact::can_enumerate(s.split.present, s.split.absent) {
+        // A single table: one condition, whose split is the whole scenario's.
+        let c = &s.conditions[0];
+        if !exact::can_enumerate(c.present, c.absent) {
             return Err(RunError::TooLargeToEnumerate {
                 design: design.name.clone(),
                 trials: s.trials,
-                outcomes: (u64::from(s.split.present) + 1) * (u64::from(s.split.absent) + 1),
+                outcomes: (u64::from(c.present) + 1) * (u64::from(c.absent) + 1),
                 max: exact::MAX_OUTCOMES,
             });
         }
@@ -175,7 +177,7 @@ fn simulate_scenario(
         && let Some(tally) = exact::enumerate(&kernel)
     {
         return Ok(summary::summarise(
-            *scenario,
+            scenario.clone(),
             &design.name,
             &tally,
             Method::Exact,
@@ -189,7 +191,7 @@ fn simulate_scenario(
         progress,
     );
     Ok(summary::summarise(
-        *scenario,
+        scenario.clone(),
         &design.name,
         &tally,
         Method::MonteCarlo,

@@ -44,7 +44,7 @@ fn run_prints_tables_and_writes_whole_files() {
     let csv = std::fs::read_to_string(dir.path().join("out.csv")).unwrap();
     // Header + 2 designs × 4 trial counts × 2 quantities.
     assert_eq!(csv.lines().count(), 1 + 16);
-    assert!(csv.starts_with("design,record,trials,n_present,n_absent"));
+    assert!(csv.starts_with("design,record,trials,condition,n_present,n_absent"));
     let json: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(dir.path().join("out.json")).unwrap())
             .unwrap();

@@ -12,7 +12,8 @@ fn row(table: &str, presence: &str, trials: u32) -> Vec<String> {
         .map(|l| l.split_whitespace().map(str::to_string).collect::<Vec<_>>())
         .find(|cells| {
             let n = cells.len();
-            n >= 4 && cells[n - 4] == presence && cells[n - 3] == trials.to_string()
+            // … presence, c, trials, present, absent (check's last five columns).
+            n >= 5 && cells[n - 5] == presence && cells[n - 3] == trials.to_string()
         })
         .unwrap_or_else(|| panic!("no row for {presence} × {trials} in:\n{table}"))
 }

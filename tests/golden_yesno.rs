@@ -131,10 +131,7 @@ fn exact_enumeration_matches_scipy() {
             id: 0,
             design: 0,
             trials: ns + nn,
-            split: vigil::design::Split {
-                present: ns,
-                absent: nn,
-            },
+            conditions: Vec::new(),
         };
         let s = summarise(scenario, "golden", &tally, Method::Exact);
         let d = s.quantity(Quantity::DPrime).unwrap();

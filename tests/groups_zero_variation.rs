@@ -13,7 +13,6 @@
 //! (SD/√(2(R − 1)), normal theory).
 
 use std::path::Path;
-use vigil::design::Split;
 use vigil::engine::parallel::run_replicates;
 use vigil::engine::scenario_kernel::ScenarioKernel;
 use vigil::engine::summary::{Method, summarise};
@@ -84,10 +83,7 @@ fn group_estimates_match_one_subject_with_all_the_trials() {
         id: 0,
         design: 0,
         trials: n,
-        split: Split {
-            present: n / 2,
-            absent: n / 2,
-        },
+        conditions: Vec::new(),
     };
     let single = summarise(scenario, "single", &tally, Method::MonteCarlo);
 

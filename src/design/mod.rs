@@ -3,12 +3,14 @@
 //! Every design is a coarsening of one count table (stimulus class × response category).
 //! A yes/no design keeps two response categories; a rating design keeps K.
 
+mod condition_trials;
 pub mod goals;
 pub mod model;
 pub mod quantities;
 mod route;
 mod split;
 
+pub use condition_trials::{ConditionTrials, Counts};
 pub use route::Route;
 pub use split::{Split, split_trials};
 

@@ -1,11 +1,11 @@
 //! Expansion of a plan into scenarios: one per design × trial count, numbers resolved.
 
 use super::Plan;
-use crate::design::{Split, split_trials};
+use crate::design::ConditionTrials;
 use serde::Serialize;
 
 /// One simulated experiment setting: a design at one trial count.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Scenario {
     /// Position in plan order; part of every replicate's random-stream key.
     pub id: u64,
@@ -13,7 +13,8 @@ pub struct Scenario {
     pub design: usize,
     /// Total trials per condition.
     pub trials: u32,
-    pub split: Split,
+    /// Every condition's present and absent trials and true values, in plan order.
+    pub conditions: Vec<ConditionTrials>,
 }
 
 /// All scenarios of a plan, designs in plan order, trial counts increasing.
@@ -25,7 +26,7 @@ pub fn expand(plan: &Plan) -> Vec<Scenario> {
                 id: out.len() as u64,
                 design: d,
                 trials,
-                split: split_trials(trials, design.presence),
+                conditions: design.condition_trials(trials),
             });
         }
     }

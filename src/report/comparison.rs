@@ -1,13 +1,16 @@
 //! Side by side: what recording a rating scale buys over yes/no on the same animals.
 //!
 //! A yes/no design and a rating design are paired when both are single-condition full
-//! records with the same presence rate; their common trial counts are compared by the
+//! records of the same animal: the same presence rate, d′ and criterion (validation puts
+//! a rating scale's boundary criterion at the observer's, so only a condition that sets
+//! its own d′ or criterion makes two designs differ, and such a pair is never compared).
+//! Their common trial counts are compared by the
 //! sampling SD of d̂′ and ĉ across simulated experiments (the standard error an experiment
 //! of that size really has).
 
 use super::format::figure;
 use super::style::{new_table, right_align};
-use crate::design::Response;
+use crate::design::{Condition, Response};
 use crate::engine::{Figure, ScenarioSummary};
 use crate::plan::Plan;
 use crate::vocab::Quantity;
@@ -53,8 +56,6 @@ pub struct Comparison {
     pub yes_no: String,
     pub rating: String,
     pub categories: usize,
-    /// |c of the rating boundary − c of the yes/no design|, when the two differ.
-    pub criterion_mismatch: Option<f64>,
     pub rows: Vec<ComparisonRow>,
 }
 
@@ -69,7 +70,7 @@ pub fn comparisons(plan: &Plan, summaries: &[ScenarioSummary]) -> Vec<Comparison
             let Response::Rating(scale) = &rd.response else {
                 continue;
             };
-            if !rd.is_single_table() || rd.presence != yd.presence {
+            if !rd.is_single_table() || !same_animal(&yd.conditions[0], &rd.conditions[0]) {
                 continue;
             }
             let rows: Vec<ComparisonRow> = yd
@@ -80,17 +81,21 @@ pub fn comparisons(plan: &Plan, summaries: &[ScenarioSummary]) -> Vec<Comparison
             if rows.is_empty() {
                 continue;
             }
-            let gap = (rd.conditions[0].criterion - yd.conditions[0].criterion).abs();
             out.push(Comparison {
                 yes_no: yd.name.clone(),
                 rating: rd.name.clone(),
                 categories: scale.categories,
-                criterion_mismatch: (gap > 0.01).then_some(gap),
                 rows,
             });
         }
     }
     out
+}
+
+/// Whether two conditions simulate one animal at one presence rate (σ and lapses are the
+/// observer's, common to every design).
+fn same_animal(a: &Condition, b: &Condition) -> bool {
+    a.presence == b.presence && a.d_prime == b.d_prime && a.criterion == b.criterion
 }
 
 fn row(summaries: &[ScenarioSummary], y: usize, r: usize, trials: u32) -> Option<ComparisonRow> {
@@ -190,12 +195,6 @@ pub fn render(comparisons: &[Comparison]) -> String {
                 out,
                 "Note: at {} trials the yes/no estimate of d′ is biased by {:+.3} (rating: {:+.3}); the yes/no model assumes equal variances, and more trials do not remove that bias.",
                 last.trials, last.bias_d_prime_yes_no.value, last.bias_d_prime_rating.value
-            );
-        }
-        if let Some(gap) = c.criterion_mismatch {
-            let _ = writeln!(
-                out,
-                "Note: the two designs assume boundary criteria {gap:.2} apart; for a like-for-like comparison make the scale's boundary criterion equal the observer's criterion."
             );
         }
         let _ = writeln!(out);

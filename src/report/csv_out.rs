@@ -1,13 +1,21 @@
 //! Tidy CSV: one row per design × trial count × quantity.
+//!
+//! `condition` names the condition a quantity belongs to (empty for a single-condition
+//! design and for a parameter the conditions share); `n_present`/`n_absent` are that
+//! condition's trials, or for a shared parameter the sums over the conditions it is
+//! estimated from. Error and response totals do not fix them: there they are the expected
+//! split (presence × encounters, rounded as a fixed split is).
 
+use crate::design::ConditionTrials;
 use crate::engine::ScenarioSummary;
 use crate::plan::Plan;
 
 /// Column names, in order.
-pub const COLUMNS: [&str; 30] = [
+pub const COLUMNS: [&str; 31] = [
     "design",
     "record",
     "trials",
+    "condition",
     "n_present",
     "n_absent",
     "method",
@@ -48,12 +56,14 @@ pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> Result<Vec<u8>, csv
             crate::engine::Method::Exact => "exact",
         };
         for q in &s.quantities {
+            let (present, absent) = trials_of(&s.scenario.conditions, q.condition.as_deref());
             let row: Vec<String> = vec![
                 design.name.clone(),
                 design.record_label(),
                 s.scenario.trials.to_string(),
-                s.scenario.split.present.to_string(),
-                s.scenario.split.absent.to_string(),
+                q.condition.clone().unwrap_or_default(),
+                present.to_string(),
+                absent.to_string(),
                 method.to_string(),
                 q.key(),
                 num(q.truth),
@@ -84,6 +94,15 @@ pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> Result<Vec<u8>, csv
         }
     }
     w.into_inner().map_err(|e| e.into_error().into())
+}
+
+/// Present and absent trials of the named condition, or summed over every condition for a
+/// quantity that belongs to none (a single condition's own, a shared parameter's all).
+fn trials_of(conditions: &[ConditionTrials], condition: Option<&str>) -> (u32, u32) {
+    conditions
+        .iter()
+        .filter(|c| condition.is_none_or(|name| c.name == name))
+        .fold((0, 0), |(p, a), c| (p + c.present, a + c.absent))
 }
 
 /// Full precision, empty for undefined values (so spreadsheets read NA, not text).

@@ -30,10 +30,13 @@ pub fn render(plan: &Plan, scans: &[DesignScan]) -> String {
     let mut out = String::new();
     let o = plan.observer();
     let _ = writeln!(out, "vigil explore — {}", plan.study().title);
+    // Under "optimal" each condition has its own criterion (its row labels say which).
+    let criterion = super::conditions_text::optimal_rule_text(plan)
+        .unwrap_or_else(|| format!("c = {:+.2}", o.criterion));
     let _ = writeln!(
         out,
-        "Hypothesised observer: d′ = {:.2}, c = {:+.2}, σ = {}. Expected (Fisher) information at these values, lapses off; no simulation.",
-        o.d_prime, o.criterion, o.sigma
+        "Hypothesised observer: d′ = {:.2}, {criterion}, σ = {}. Expected (Fisher) information at these values, lapses off; no simulation.",
+        o.d_prime, o.sigma
     );
     let _ = writeln!(
         out,
@@ -50,9 +53,16 @@ pub fn render(plan: &Plan, scans: &[DesignScan]) -> String {
 }
 
 fn design_block(out: &mut String, plan: &Plan, scan: &DesignScan) {
+    // Every condition's presence and criterion, where the design has several.
+    let conditions = plan
+        .designs()
+        .iter()
+        .find(|d| d.name == scan.design && d.conditions.len() > 1)
+        .map(|d| format!("; {}", super::conditions_text::conditions_text(plan, d)))
+        .unwrap_or_default();
     let _ = writeln!(
         out,
-        "■ {}  ({}; free parameters: {})",
+        "■ {}  ({}; free parameters: {}{conditions})",
         scan.design,
         scan.record,
         scan.parameters.join(", ")

@@ -26,8 +26,19 @@ pub fn reading(design: &Design, rows: &[&ScenarioSummary], level: f64) -> String
         );
     }
     let pct = 100.0 * level;
+    // With a criterion per condition, the loosest one is quoted (and said to be).
+    let criteria = first
+        .quantities
+        .iter()
+        .filter(|q| q.quantity == Quantity::Criterion)
+        .count();
+    let which = if criteria > 1 {
+        format!("; for c the widest of the {criteria} conditions'")
+    } else {
+        String::new()
+    };
     let mut parts = vec![format!(
-        "c is pinned to ±{} and d′ to ±{} at {} trials, ±{} and ±{} at {} trials ({pct:.0}% half-widths)",
+        "c is pinned to ±{} and d′ to ±{} at {} trials, ±{} and ±{} at {} trials ({pct:.0}% half-widths{which})",
         half_width(first, Quantity::Criterion),
         half_width(first, Quantity::DPrime),
         first.scenario.trials,
@@ -81,8 +92,13 @@ pub fn reading(design: &Design, rows: &[&ScenarioSummary], level: f64) -> String
     format!("{}: {}.", design.name, parts.join("; "))
 }
 
+/// The half-width of `q`, the widest over the conditions when each has its own.
 fn half_width(s: &ScenarioSummary, q: Quantity) -> String {
-    s.quantity(q)
-        .map(|x| format!("{:.2}", x.mean_width.value / 2.0))
+    s.quantities
+        .iter()
+        .filter(|x| x.quantity == q)
+        .map(|x| x.mean_width.value / 2.0)
+        .reduce(f64::max)
+        .map(|w| format!("{w:.2}"))
         .unwrap_or_else(|| "–".into())
 }

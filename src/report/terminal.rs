@@ -2,6 +2,9 @@
 //! and a one-line reading.
 
 use super::CAUTION;
+use super::conditions_text::{
+    EXPECTED_NOTE, any_expected, conditions_text, optimal_rule_text, split_text,
+};
 use super::format::{figure, number, percent, share};
 use super::reading::reading;
 use super::style::{new_table, right_align};
@@ -64,11 +67,23 @@ fn header(out: &mut String, plan: &Plan, summaries: &[ScenarioSummary]) {
         "unbiased"
     };
     let _ = writeln!(out, "vigil — {}", plan.study().title);
-    let _ = writeln!(
-        out,
-        "Hypothesised observer: d′ = {:.2}, c = {:+.2} ({lean}), σ = {}; yes/no rates H = {:.3}, F = {:.3}",
-        o.d_prime, o.criterion, o.sigma, r.hit, r.false_alarm
-    );
+    match optimal_rule_text(plan) {
+        // Each condition has its own criterion (and rates): the design blocks list them.
+        Some(rule) => {
+            let _ = writeln!(
+                out,
+                "Hypothesised observer: d′ = {:.2}, {rule} (listed with each design), σ = {}",
+                o.d_prime, o.sigma
+            );
+        }
+        None => {
+            let _ = writeln!(
+                out,
+                "Hypothesised observer: d′ = {:.2}, c = {:+.2} ({lean}), σ = {}; yes/no rates H = {:.3}, F = {:.3}",
+                o.d_prime, o.criterion, o.sigma, r.hit, r.false_alarm
+            );
+        }
+    }
     let exact = summaries.iter().any(|s| s.method == Method::Exact);
     let how = if exact {
         "exact enumeration of every outcome (no Monte Carlo error)".to_string()
@@ -102,25 +117,16 @@ fn design_block(out: &mut String, plan: &Plan, design: &Design, rows: &[&Scenari
             if s.fix_sigma { ", σ fixed at 1" } else { "" }
         ),
     };
-    let presence = if design.conditions.len() == 1 {
-        format!(
-            "stimulus present on {:.0}% of trials",
-            100.0 * design.presence
-        )
-    } else {
-        let each: Vec<String> = design
-            .conditions
-            .iter()
-            .map(|c| format!("{} {:.0}%", c.name, 100.0 * c.presence))
-            .collect();
-        format!("conditions: {}", each.join(", "))
-    };
+    let presence = conditions_text(plan, design);
     let record = match design.record {
         crate::design::RecordKind::Full => String::new(),
         _ => format!("; {}", design.record_label()),
     };
     let _ = writeln!(out, "■ {}  ({detail}{record}; {presence})", design.name);
     let _ = writeln!(out, "{}", precision_table(rows, plan.study().confidence));
+    if any_expected(rows.iter().flat_map(|s| &s.scenario.conditions)) {
+        let _ = writeln!(out, "{EXPECTED_NOTE}");
+    }
     let _ = writeln!(out, "{}", tradeoff_table(rows));
     if rows.iter().any(|s| !s.tests.is_empty()) {
         let _ = writeln!(out, "{}", power_table(rows, plan.study().alpha));
@@ -156,6 +162,7 @@ fn precision_table(rows: &[&ScenarioSummary], level: f64) -> Table {
         "width",
     ]);
     for s in rows {
+        let splits = row_splits(s);
         for (i, q) in s.quantities.iter().enumerate() {
             let first = i == 0;
             t.add_row(vec![
@@ -164,11 +171,7 @@ fn precision_table(rows: &[&ScenarioSummary], level: f64) -> Table {
                 } else {
                     String::new()
                 },
-                if first {
-                    format!("{}/{}", s.scenario.split.present, s.scenario.split.absent)
-                } else {
-                    String::new()
-                },
+                splits[i].clone(),
                 q.label(),
                 number(q.truth, 3),
                 figure(&q.mean, 3),
@@ -186,10 +189,56 @@ fn precision_table(rows: &[&ScenarioSummary], level: f64) -> Table {
     t
 }
 
+/// The present/absent cell of each quantity row: a single condition's split on the first
+/// row; with several conditions, each condition's split on the first row of a quantity of
+/// its own (rows of shared quantities stay empty), or every split on the first row when
+/// some condition has no row of its own (everything shared).
+fn row_splits(s: &ScenarioSummary) -> Vec<String> {
+    let conditions = &s.scenario.conditions;
+    let mut cells = vec![String::new(); s.quantities.len()];
+    if cells.is_empty() {
+        return cells;
+    }
+    if conditions.len() <= 1 {
+        cells[0] = conditions.first().map(split_text).unwrap_or_default();
+        return cells;
+    }
+    let rows: Vec<Option<usize>> = conditions
+        .iter()
+        .map(|c| {
+            s.quantities
+                .iter()
+                .position(|q| q.condition.as_deref() == Some(c.name.as_str()))
+        })
+        .collect();
+    if rows.iter().all(Option::is_some) {
+        for (c, row) in conditions.iter().zip(rows) {
+            cells[row.unwrap_or(0)] = split_text(c);
+        }
+    } else {
+        let all: Vec<String> = conditions.iter().map(split_text).collect();
+        cells[0] = all.join(" · ");
+    }
+    cells
+}
+
+/// "r(d̂′, ĉ)", naming the condition when the pair belongs to one of several.
+fn correlation_label(rows: &[&ScenarioSummary]) -> String {
+    let name = |i: usize| {
+        rows.first()
+            .and_then(|s| s.quantities.get(i))
+            .and_then(|q| q.condition.as_deref())
+            .map(|c| format!("[{c}]"))
+            .unwrap_or_default()
+    };
+    format!("r(d̂′{}, ĉ{})", name(0), name(1))
+}
+
 fn tradeoff_table(rows: &[&ScenarioSummary]) -> Table {
+    let label = correlation_label(rows);
     let mut t = new_table(vec![
         "trials",
-        "r(d̂′, ĉ)",
+        &label,
         "rate of 0 or 1",
         "left out: degenerate",
         "left out: not converged",

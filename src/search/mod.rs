@@ -160,7 +160,7 @@ fn evaluate(
         id: SEARCH_STREAM_BASE + d as u64,
         design: d,
         trials,
-        split: split_trials(trials, plan.designs()[d].presence),
+        conditions: plan.designs()[d].condition_trials(trials),
     };
     let s = run_scenario(plan, &scenario, RunOptions::default(), progress)?;
     Ok(targets.iter().map(|t| value(&s, t)).collect())

@@ -3,6 +3,7 @@
 use super::conditions::{conditions, shared};
 use super::observer::ObserverSpec;
 use super::scale::scale;
+use super::scale_placement::place_scale;
 use super::{Ctx, MAX_TRIALS, open_unit};
 use crate::design::{BaseRate, Condition, Design, RecordKind, Response, split_trials};
 use crate::plan::PlanError;
@@ -20,16 +21,18 @@ pub(super) fn design(ctx: &Ctx, d: &RawDesign, spec: &ObserverSpec) -> Result<De
         Some(s) => Response::Rating(scale(ctx, s, observer)?),
     };
     let record = record(ctx, d, &response)?;
+    let response = match (response, &d.scale) {
+        (Response::Rating(s), Some(raw)) => Response::Rating(place_scale(ctx, raw, s, spec)?),
+        (other, _) => other,
+    };
     let base_rate = base_rate(ctx, d, record)?;
     let default_presence = match &d.presence {
         Some(p) => Some(presence(ctx, p)?),
         None => None,
     };
-    let boundary_criterion = match &response {
-        Response::YesNo => observer.criterion,
-        Response::Rating(s) => s.criteria[s.boundary - 1],
-    };
-    let conditions = conditions(ctx, d, &name, default_presence, spec, boundary_criterion)?;
+    // A rating scale has been placed at the observer's criterion, so every design's
+    // conditions start from it.
+    let conditions = conditions(ctx, d, &name, default_presence, spec, observer.criterion)?;
     let trials = trials(ctx, d, record, &conditions)?;
     let shared = shared(ctx, d, &response, base_rate, conditions.len())?;
     Ok(Design {

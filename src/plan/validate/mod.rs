@@ -10,6 +10,7 @@ pub(super) mod goals;
 mod observer;
 mod runnable;
 mod scale;
+mod scale_placement;
 mod study;
 
 use super::keys::allowed;

@@ -17,6 +17,11 @@ pub(super) struct ObserverSpec {
 }
 
 impl ObserverSpec {
+    /// Where `observer.criterion` is written (for messages that name it beside another key).
+    pub(super) fn criterion_span(&self) -> std::ops::Range<usize> {
+        self.criterion_span.clone()
+    }
+
     pub(super) fn rule(&self) -> CriterionRule {
         match (self.optimal, self.payoffs) {
             (true, Some(payoffs)) => CriterionRule::Optimal {
