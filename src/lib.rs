@@ -53,6 +53,7 @@ pub mod commands;
 pub mod design;
 pub mod engine;
 pub mod evaluate;
+pub mod figures;
 pub mod fit;
 pub mod groups;
 pub mod infer;
