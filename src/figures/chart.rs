@@ -7,8 +7,8 @@ use super::FigureError;
 use super::palette::{INK, Marker};
 use plotters::coord::Shift;
 use plotters::element::{Drawable, PointCollection};
-use plotters_backend::{BackendCoord, DrawingErrorKind};
 use plotters::prelude::*;
+use plotters_backend::{BackendCoord, DrawingErrorKind};
 
 /// The drawing area of a figure.
 pub type Area<'a> = DrawingArea<SVGBackend<'a>, Shift>;
@@ -93,7 +93,9 @@ fn draw_mark<DB: DrawingBackend>(
     let fill = ShapeStyle::from(&colour).filled();
     match shape {
         Marker::Circle => backend.draw_circle((x, y), 4, &fill, true),
-        Marker::Triangle => backend.fill_polygon(vec![(x, y - 5), (x - 5, y + 4), (x + 5, y + 4)], &fill),
+        Marker::Triangle => {
+            backend.fill_polygon(vec![(x, y - 5), (x - 5, y + 4), (x + 5, y + 4)], &fill)
+        }
         Marker::Square => backend.draw_rect((x - 4, y - 4), (x + 4, y + 4), &fill, true),
         Marker::Cross => {
             let line = colour.stroke_width(2);
@@ -165,7 +167,7 @@ pub fn legend_style() -> (ShapeStyle, ShapeStyle) {
     (WHITE.mix(0.9).filled(), INK.stroke_width(1))
 }
 
-/// Rounded-up axis end with a margin: the smallest of 1, 2, 2.5, 5 × 10^k at or above
+/// Rounded-up axis end with a margin: the smallest round multiple of 10^k at or above
 /// `x × 1.05` (so the largest point is not on the frame).
 pub fn nice_ceiling(x: f64) -> f64 {
     if !(x.is_finite() && x > 0.0) {
@@ -173,7 +175,7 @@ pub fn nice_ceiling(x: f64) -> f64 {
     }
     let x = x * 1.05;
     let p = 10f64.powf(x.log10().floor());
-    [1.0, 2.0, 2.5, 5.0, 10.0]
+    [1.0, 1.2, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 6.0, 8.0, 10.0]
         .iter()
         .map(|m| m * p)
         .find(|&v| v >= x)

@@ -6,10 +6,14 @@ use super::chart::{self, band_key, key, legend_style};
 use super::inputs::Inputs;
 use super::palette::{SHADE, colour};
 use super::{FigureError, Svg};
+use crate::analytic::information::ScenarioInformation;
 use crate::analytic::scan::DesignScan;
 use crate::cells::verdict::Verdict;
 use crate::vocab::Quantity;
 use plotters::prelude::*;
+
+/// One value read off a scan row (an SE, the condition number).
+type Reading = dyn Fn(&ScenarioInformation) -> Option<f64>;
 
 /// Trial-count spans `[from, to]` over which `scan` is not identified.
 fn unidentified(scan: &DesignScan) -> Vec<(f64, f64)> {
@@ -35,8 +39,27 @@ fn unidentified(scan: &DesignScan) -> Vec<(f64, f64)> {
     spans
 }
 
+/// Labels a log axis at 1, 2 and 5 × 10^k only (plotters offers every integer multiple,
+/// which crowd together near each decade).
+fn log_label(v: &f64) -> String {
+    let decade = 10f64.powf(v.log10().floor());
+    let lead = v / decade;
+    if [1.0, 2.0, 5.0].iter().any(|m| (lead - m).abs() < 1e-6) {
+        let digits = if *v >= 1.0 {
+            0
+        } else {
+            (-v.log10().floor()) as usize
+        };
+        format!("{v:.digits$}")
+    } else {
+        String::new()
+    }
+}
+
 fn x_range(scans: &[DesignScan]) -> Option<(f64, f64)> {
-    let xs = scans.iter().flat_map(|s| s.rows.iter().map(|r| f64::from(r.trials)));
+    let xs = scans
+        .iter()
+        .flat_map(|s| s.rows.iter().map(|r| f64::from(r.trials)));
     let (lo, hi) = xs.fold((f64::INFINITY, 0.0f64), |(a, b), x| (a.min(x), b.max(x)));
     (lo.is_finite() && hi > lo).then_some((lo, hi))
 }
@@ -47,7 +70,7 @@ fn panel(
     name: &str,
     title: &str,
     y_desc: &str,
-    series: &[(&str, &dyn Fn(&crate::analytic::information::ScenarioInformation) -> Option<f64>)],
+    series: &[(&str, &Reading)],
 ) -> Result<Option<Svg>, FigureError> {
     let Some((x0, x1)) = x_range(inputs.scans) else {
         return Ok(None);
@@ -72,11 +95,12 @@ fn panel(
             .y_label_area_size(64)
             .build_cartesian_2d((x0..x1).log_scale(), (y0..y1).log_scale())?;
         c.configure_mesh()
-            .light_line_style(WHITE)
+            .light_line_style(TRANSPARENT)
             .bold_line_style(SHADE.mix(0.4))
             .x_desc("trials per condition (log scale)")
+            .x_label_formatter(&log_label)
             .y_desc(y_desc)
-            .y_label_formatter(&|v| format!("{v:.3}"))
+            .y_label_formatter(&|v| log_label(v))
             .label_style(chart::font(12))
             .axis_desc_style(chart::font(13))
             .draw()?;
@@ -134,8 +158,8 @@ fn panel(
 
 /// Asymptotic SE of d′ (solid) and c (dashed, first condition) per design.
 pub fn standard_errors(inputs: &Inputs, name: &str) -> Result<Option<Svg>, FigureError> {
-    let d = |r: &crate::analytic::information::ScenarioInformation| r.se(Quantity::DPrime);
-    let c = |r: &crate::analytic::information::ScenarioInformation| r.se(Quantity::Criterion);
+    let d = |r: &ScenarioInformation| r.se(Quantity::DPrime);
+    let c = |r: &ScenarioInformation| r.se(Quantity::Criterion);
     panel(
         inputs,
         name,
@@ -147,7 +171,7 @@ pub fn standard_errors(inputs: &Inputs, name: &str) -> Result<Option<Svg>, Figur
 
 /// Condition number of the information matrix per design.
 pub fn condition_number(inputs: &Inputs, name: &str) -> Result<Option<Svg>, FigureError> {
-    let k = |r: &crate::analytic::information::ScenarioInformation| Some(r.condition_number);
+    let k = |r: &ScenarioInformation| Some(r.condition_number);
     panel(
         inputs,
         name,

@@ -3,7 +3,7 @@
 //! frontier: cost against the weakest test's power for the allocations the effort split
 //! simulated, with the budget line, the target and the chosen allocations.
 
-use super::chart::{self, key, legend_style, marker, nice_ceiling};
+use super::chart::{self, key, legend_style, marker};
 use super::palette::{INK, SHADE, colour, light_text_on, marker as marker_of, sequential};
 use super::{FigureError, Svg};
 use crate::groups::DesignGroups;
@@ -38,9 +38,11 @@ pub fn heat_map(design: &DesignGroups, t: usize, name: &str) -> Result<Option<Sv
         let mut c = ChartBuilder::on(root)
             .caption(&title, chart::font(18))
             .margin(12)
+            .margin_bottom(28)
             .x_label_area_size(44)
             .y_label_area_size(56)
-            .build_cartesian_2d((0..nx).into_segmented(), (0..ny).into_segmented())?;
+            // A segmented range of 0..n − 1 has n segments, one per column (row).
+            .build_cartesian_2d((0..nx - 1).into_segmented(), (0..ny - 1).into_segmented())?;
         let centre = |v: &SegmentValue<i32>| match v {
             SegmentValue::CenterOf(i) => usize::try_from(*i).ok(),
             _ => None,
@@ -79,18 +81,19 @@ pub fn heat_map(design: &DesignGroups, t: usize, name: &str) -> Result<Option<Sv
                     sequential(p.value).filled(),
                 )))?;
                 if target.is_some_and(|t| p.value >= t) {
-                    c.draw_series(std::iter::once(
-                        EmptyElement::at((SegmentValue::CenterOf(x), SegmentValue::CenterOf(y)))
-                            + Rectangle::new([(-40, -22), (40, 22)], WHITE.stroke_width(3)),
-                    ))?;
+                    c.draw_series(std::iter::once(Rectangle::new(
+                        [corner(x, y), corner(x + 1, y + 1)],
+                        INK.stroke_width(3),
+                    )))?;
                 }
                 let ink = if light_text_on(p.value) { WHITE } else { BLACK };
-                let style = chart::font(12)
-                    .color(&ink)
-                    .pos(plotters::style::text_anchor::Pos::new(
-                        plotters::style::text_anchor::HPos::Center,
-                        plotters::style::text_anchor::VPos::Center,
-                    ));
+                let style =
+                    chart::font(12)
+                        .color(&ink)
+                        .pos(plotters::style::text_anchor::Pos::new(
+                            plotters::style::text_anchor::HPos::Center,
+                            plotters::style::text_anchor::VPos::Center,
+                        ));
                 c.draw_series(std::iter::once(Text::new(
                     format!("{:.2} ({:.2}–{:.2})", p.value, p.low, p.high),
                     (SegmentValue::CenterOf(x), SegmentValue::CenterOf(y)),
@@ -106,7 +109,7 @@ pub fn heat_map(design: &DesignGroups, t: usize, name: &str) -> Result<Option<Sv
         };
         root.draw(&Text::new(
             note,
-            (70, chart::SIZE.1 as i32 - 14),
+            (70, chart::SIZE.1 as i32 - 16),
             chart::font(11),
         ))?;
         Ok(())
@@ -118,8 +121,11 @@ pub fn heat_map(design: &DesignGroups, t: usize, name: &str) -> Result<Option<Sv
     }))
 }
 
+/// `(cost, power, low, high)`.
+type Point = (f64, f64, f64, f64);
+
 /// `(cost, power, low, high)` of an allocation's weakest test.
-fn point(a: &Allocation) -> Option<(f64, f64, f64, f64)> {
+fn point(a: &Allocation) -> Option<Point> {
     let p = a.weakest()?;
     Some((a.cost, p.value, p.low, p.high))
 }
@@ -130,21 +136,36 @@ pub fn frontier(design: &DesignGroups, name: &str) -> Result<Option<Svg>, Figure
         return Ok(None);
     };
     let lines: [(&str, &[Allocation], Option<usize>); 2] = [
-        ("most animals the budget buys", &e.budget_frontier, e.best_for_budget),
-        ("fewest animals that meet the targets", &e.target_frontier, e.least_cost),
+        (
+            "most animals the budget buys",
+            &e.budget_frontier,
+            e.best_for_budget,
+        ),
+        (
+            "fewest animals that meet the targets",
+            &e.target_frontier,
+            e.least_cost,
+        ),
     ];
     if lines.iter().all(|l| l.1.is_empty()) {
         return Ok(None);
     }
-    let all: Vec<(f64, f64, f64, f64)> = lines.iter().flat_map(|l| l.1.iter().filter_map(point)).collect();
-    let x_max = nice_ceiling(
-        all.iter()
-            .map(|p| p.0)
-            .chain(e.budget.total)
-            .fold(0.0, f64::max)
-            * 1.1,
-    );
-    let target = e.goals.iter().filter_map(|g| g.target).fold(f64::NAN, f64::max);
+    let all: Vec<Point> = lines
+        .iter()
+        .flat_map(|l| l.1.iter().filter_map(point))
+        .collect();
+    // Zoomed to the simulated allocations and the budget: they differ little in cost.
+    let costs = all.iter().map(|p| p.0).chain(e.budget.total);
+    let (lo, hi) = costs.fold((f64::INFINITY, 0.0f64), |(a, b), x| (a.min(x), b.max(x)));
+    let pad = 0.1 * (hi - lo).max(0.05 * hi.max(1.0));
+    let (x_min, x_max) = ((lo - pad).max(0.0), hi + pad);
+    let y_min = all.iter().map(|p| p.2).fold(1.0, f64::min);
+    let y_min = ((y_min - 0.1).max(0.0) * 10.0).floor() / 10.0;
+    let target = e
+        .goals
+        .iter()
+        .filter_map(|g| g.target)
+        .fold(f64::NAN, f64::max);
     let title = format!("Effort frontier: {}", design.design);
     let text = chart::render(name, |root| {
         let mut c = ChartBuilder::on(root)
@@ -152,18 +173,19 @@ pub fn frontier(design: &DesignGroups, name: &str) -> Result<Option<Svg>, Figure
             .margin(12)
             .x_label_area_size(44)
             .y_label_area_size(56)
-            .build_cartesian_2d(0.0..x_max, 0.0..1.0)?;
+            .build_cartesian_2d(x_min..x_max, y_min..1.0)?;
         c.configure_mesh()
-            .light_line_style(WHITE)
+            .light_line_style(TRANSPARENT)
             .bold_line_style(SHADE.mix(0.4))
             .x_desc("cost (the plan's budget units)")
+            .x_label_formatter(&|v| format!("{v:.0}"))
             .y_desc("power of the weakest group test")
             .label_style(chart::font(12))
             .axis_desc_style(chart::font(13))
             .draw()?;
         if let Some(total) = e.budget.total {
             c.draw_series(DashedLineSeries::new(
-                vec![(total, 0.0), (total, 1.0)],
+                vec![(total, y_min), (total, 1.0)],
                 8,
                 4,
                 INK.stroke_width(1),
@@ -172,21 +194,19 @@ pub fn frontier(design: &DesignGroups, name: &str) -> Result<Option<Svg>, Figure
             .legend(key(None, INK, true));
         }
         if target.is_finite() {
-            c.draw_series(DashedLineSeries::new(
-                vec![(0.0, target), (x_max, target)],
-                2,
-                4,
+            c.draw_series(LineSeries::new(
+                vec![(x_min, target), (x_max, target)],
                 INK.stroke_width(1),
             ))?
             .label(format!("target power {target}"))
-            .legend(key(None, INK, true));
+            .legend(key(None, INK, false));
         }
         for (i, (label, rows, chosen)) in lines.iter().enumerate() {
             if rows.is_empty() {
                 continue;
             }
             let col = colour(i);
-            let mut pts: Vec<(&Allocation, (f64, f64, f64, f64))> =
+            let mut pts: Vec<(&Allocation, Point)> =
                 rows.iter().filter_map(|a| Some((a, point(a)?))).collect();
             pts.sort_by(|a, b| a.1.0.total_cmp(&b.1.0));
             c.draw_series(LineSeries::new(
@@ -204,7 +224,10 @@ pub fn frontier(design: &DesignGroups, name: &str) -> Result<Option<Svg>, Figure
                         chart::font(10),
                     )
             }))?;
-            c.draw_series(pts.iter().map(|(_, p)| marker(marker_of(i), (p.0, p.1), col)))?
+            c.draw_series(
+                pts.iter()
+                    .map(|(_, p)| marker(marker_of(i), (p.0, p.1), col)),
+            )?
             .label(format!("{label} (animals × trials each)"))
             .legend(key(Some(marker_of(i)), col, false));
             if let Some(a) = chosen.and_then(|k| rows.get(k)).and_then(point) {

@@ -70,7 +70,11 @@ pub fn all(inputs: &Inputs) -> Result<Vec<Svg>, FigureError> {
         }
     };
     for h in inputs.plan.hypotheses() {
-        push(power::render(inputs, &h.name, &format!("power-{}", slug(&h.name)))?);
+        push(power::render(
+            inputs,
+            &h.name,
+            &format!("power-{}", slug(&h.name)),
+        )?);
     }
     for (d, design) in inputs.plan.designs().iter().enumerate() {
         push(precision::render(

@@ -37,7 +37,12 @@ pub enum Marker {
 
 /// Marker of series `i` (cycles independently of the colour count, so pairs stay unique).
 pub fn marker(i: usize) -> Marker {
-    [Marker::Circle, Marker::Triangle, Marker::Square, Marker::Cross][i % 4]
+    [
+        Marker::Circle,
+        Marker::Triangle,
+        Marker::Square,
+        Marker::Cross,
+    ][i % 4]
 }
 
 /// A sequential scale for heat maps: viridis anchors (perceptually uniform, monotone in
@@ -50,7 +55,11 @@ pub fn sequential(t: f64) -> RGBColor {
         (0x5D, 0xC8, 0x63),
         (0xFD, 0xE7, 0x25),
     ];
-    let t = if t.is_finite() { t.clamp(0.0, 1.0) } else { 0.0 };
+    let t = if t.is_finite() {
+        t.clamp(0.0, 1.0)
+    } else {
+        0.0
+    };
     let x = t * (ANCHORS.len() - 1) as f64;
     let i = (x.floor() as usize).min(ANCHORS.len() - 2);
     let f = x - i as f64;

@@ -40,16 +40,15 @@ fn series(inputs: &Inputs, hypothesis: &str) -> Vec<Series> {
             .find(|c| c.hypothesis == hypothesis)
             .map(|c| c.points.iter().map(|&(n, p)| (f64::from(n), p)).collect())
             .unwrap_or_default();
-        let chosen = inputs
-            .searches
-            .get(d)
-            .and_then(|r| match &r.outcome {
-                SearchOutcome::Found { trials, values, .. } => values
-                    .iter()
-                    .find(|v| matches!(&v.target, Target::Power { hypothesis: h, .. } if h == hypothesis))
-                    .map(|v| (f64::from(*trials), v.value, v.low, v.high)),
-                _ => None,
-            });
+        let chosen = inputs.searches.get(d).and_then(|r| match &r.outcome {
+            SearchOutcome::Found { trials, values, .. } => values
+                .iter()
+                .find(
+                    |v| matches!(&v.target, Target::Power { hypothesis: h, .. } if h == hypothesis),
+                )
+                .map(|v| (f64::from(*trials), v.value, v.low, v.high)),
+            _ => None,
+        });
         out.push(Series {
             design: design.name.clone(),
             simulated,
@@ -78,7 +77,12 @@ pub fn render(inputs: &Inputs, hypothesis: &str, name: &str) -> Result<Option<Sv
         .flat_map(|s| s.simulated.iter().map(|p| p.0).chain(s.chosen.map(|c| c.0)))
         .fold(0.0, f64::max);
     let x_max = nice_ceiling(largest * 1.1);
-    let title = format!("Power for \"{hypothesis}\" against trials");
+    // With [animals] these are one idealised animal's tests; the group's are in `groups`.
+    let title = if plan.animals().is_some() {
+        format!("Power for \"{hypothesis}\" in one animal against trials")
+    } else {
+        format!("Power for \"{hypothesis}\" against trials")
+    };
     let text = chart::render(name, |root| {
         let mut c = ChartBuilder::on(root)
             .caption(&title, chart::font(18))
@@ -87,9 +91,10 @@ pub fn render(inputs: &Inputs, hypothesis: &str, name: &str) -> Result<Option<Sv
             .y_label_area_size(56)
             .build_cartesian_2d(0.0..x_max, 0.0..1.0)?;
         c.configure_mesh()
-            .light_line_style(WHITE)
+            .light_line_style(TRANSPARENT)
             .bold_line_style(SHADE.mix(0.4))
             .x_desc("trials per condition")
+            .x_label_formatter(&|v| format!("{v:.0}"))
             .y_desc("power (share of experiments rejecting H₀)")
             .label_style(chart::font(12))
             .axis_desc_style(chart::font(13))
@@ -104,14 +109,12 @@ pub fn render(inputs: &Inputs, hypothesis: &str, name: &str) -> Result<Option<Sv
         .label(format!("α = {alpha}"))
         .legend(key(None, SHADE, true));
         if let Some(t) = target {
-            c.draw_series(DashedLineSeries::new(
+            c.draw_series(LineSeries::new(
                 vec![(0.0, t), (x_max, t)],
-                8,
-                4,
                 INK.stroke_width(1),
             ))?
             .label(format!("target power {t}"))
-            .legend(key(None, INK, true));
+            .legend(key(None, INK, false));
         }
         for (i, s) in all.iter().enumerate() {
             let col = colour(i);
@@ -126,9 +129,11 @@ pub fn render(inputs: &Inputs, hypothesis: &str, name: &str) -> Result<Option<Sv
             ))?
             .label(format!("{}: simulated, 95% Wilson band", s.design))
             .legend(key(Some(marker_of(i)), col, false));
-            c.draw_series(s.simulated.iter().map(|p| {
-                PathElement::new(vec![(p.0, p.2), (p.0, p.3)], col.stroke_width(1))
-            }))?;
+            c.draw_series(
+                s.simulated
+                    .iter()
+                    .map(|p| PathElement::new(vec![(p.0, p.2), (p.0, p.3)], col.stroke_width(1))),
+            )?;
             c.draw_series(
                 s.simulated
                     .iter()
@@ -150,7 +155,7 @@ pub fn render(inputs: &Inputs, hypothesis: &str, name: &str) -> Result<Option<Sv
                 c.draw_series(std::iter::once(
                     EmptyElement::at((n, p))
                         + Circle::new((0, 0), 7, col.stroke_width(2))
-                        + Text::new(format!("{n}"), (8, 6), chart::font(12)),
+                        + Text::new(format!("{n}"), (6, -20), chart::font(12)),
                 ))?;
             }
         }

@@ -12,7 +12,12 @@ use crate::vocab::Quantity;
 use plotters::prelude::*;
 
 /// Quantities this figure shows (the ones a reader sizes an experiment by).
-const SHOWN: [Quantity; 4] = [Quantity::DPrime, Quantity::Criterion, Quantity::Sigma, Quantity::Az];
+const SHOWN: [Quantity; 4] = [
+    Quantity::DPrime,
+    Quantity::Criterion,
+    Quantity::Sigma,
+    Quantity::Az,
+];
 
 struct Series {
     label: String,
@@ -106,9 +111,10 @@ pub fn render(inputs: &Inputs, d: usize, name: &str) -> Result<Option<Svg>, Figu
             .y_label_area_size(56)
             .build_cartesian_2d(x_min..x_max, 0.0..y_max)?;
         c.configure_mesh()
-            .light_line_style(WHITE)
+            .light_line_style(TRANSPARENT)
             .bold_line_style(SHADE.mix(0.4))
             .x_desc("trials per condition")
+            .x_label_formatter(&|v| format!("{v:.0}"))
             .y_desc(&y_desc)
             .label_style(chart::font(12))
             .axis_desc_style(chart::font(13))

@@ -40,7 +40,10 @@ fn operating_points(inputs: &Inputs, d: usize) -> Vec<(f64, f64)> {
                     s.criteria.iter().map(|c| c + shift).collect()
                 }
             };
-            criteria.into_iter().map(move |c| rates_at(&o, c)).collect::<Vec<_>>()
+            criteria
+                .into_iter()
+                .map(move |c| rates_at(&o, c))
+                .collect::<Vec<_>>()
         })
         .collect()
 }
@@ -69,9 +72,15 @@ pub fn render(inputs: &Inputs, z_scale: bool, name: &str) -> Result<Option<Svg>,
         .collect();
     let (lo, hi) = if z_scale { (-3.0, 3.0) } else { (0.0, 1.0) };
     let title = if z_scale {
-        format!("zROC of the hypothesised observer (slope 1/σ = {:.2})", 1.0 / o.sigma)
+        format!(
+            "zROC of the hypothesised observer (slope 1/σ = {:.2})",
+            1.0 / o.sigma
+        )
     } else {
-        format!("ROC of the hypothesised observer (d′ = {:.2}, σ = {:.2})", o.d_prime, o.sigma)
+        format!(
+            "ROC of the hypothesised observer (d′ = {:.2}, σ = {:.2})",
+            o.d_prime, o.sigma
+        )
     };
     let (x_desc, y_desc) = if z_scale {
         ("z(false-alarm rate)", "z(hit rate)")
@@ -86,7 +95,7 @@ pub fn render(inputs: &Inputs, z_scale: bool, name: &str) -> Result<Option<Svg>,
             .y_label_area_size(56)
             .build_cartesian_2d(lo..hi, lo..hi)?;
         c.configure_mesh()
-            .light_line_style(WHITE)
+            .light_line_style(TRANSPARENT)
             .bold_line_style(SHADE.mix(0.4))
             .x_desc(x_desc)
             .y_desc(y_desc)
@@ -115,7 +124,10 @@ pub fn render(inputs: &Inputs, z_scale: bool, name: &str) -> Result<Option<Svg>,
             }
             let col = colour(d);
             c.draw_series(pts.iter().map(|&p| marker(marker_of(d), p, col)))?
-                .label(format!("{}: operating points", inputs.plan.designs()[d].name))
+                .label(format!(
+                    "{}: operating points",
+                    inputs.plan.designs()[d].name
+                ))
                 .legend(key(Some(marker_of(d)), col, false));
         }
         let (bg, border) = legend_style();

@@ -36,7 +36,10 @@ fn ellipse(s: &ScenarioSummary) -> Option<Ellipse> {
         .map(|k| {
             let t = std::f64::consts::TAU * f64::from(k) / 96.0;
             let (u, v) = (radius * t.cos(), radius * t.sin());
-            (d.mean.value + sd * u, c.mean.value + sc * (r * u + tilt * v))
+            (
+                d.mean.value + sd * u,
+                c.mean.value + sc * (r * u + tilt * v),
+            )
         })
         .collect();
     Some(Ellipse {
@@ -81,7 +84,7 @@ pub fn ellipses(inputs: &Inputs, name: &str) -> Result<Option<Svg>, FigureError>
             .y_label_area_size(56)
             .build_cartesian_2d((x0 - px)..(x1 + px), (y0 - py)..(y1 + py))?;
         c.configure_mesh()
-            .light_line_style(WHITE)
+            .light_line_style(TRANSPARENT)
             .bold_line_style(SHADE.mix(0.4))
             .x_desc("estimated d′ (absent-SD units)")
             .y_desc("estimated c, first condition (absent-SD units)")
@@ -163,9 +166,10 @@ pub fn correlation(inputs: &Inputs, name: &str) -> Result<Option<Svg>, FigureErr
             .y_label_area_size(56)
             .build_cartesian_2d(0.0..x_max, -1.0..1.0)?;
         c.configure_mesh()
-            .light_line_style(WHITE)
+            .light_line_style(TRANSPARENT)
             .bold_line_style(SHADE.mix(0.4))
             .x_desc("trials per condition")
+            .x_label_formatter(&|v| format!("{v:.0}"))
             .y_desc("r(d̂′, ĉ) across simulated experiments")
             .label_style(chart::font(12))
             .axis_desc_style(chart::font(13))
