@@ -26,7 +26,7 @@ struct Series {
     curve: Vec<(f64, f64)>,
 }
 
-/// The precision figure of design `d`, or `None` when it has no simulated rows.
+/// The precision figure of design `d`, or `None` when it has no finite half-width to show.
 pub fn render(inputs: &Inputs, d: usize, name: &str) -> Result<Option<Svg>, FigureError> {
     let rows = inputs.rows(d);
     let Some(first) = rows.first() else {
@@ -74,6 +74,14 @@ pub fn render(inputs: &Inputs, d: usize, name: &str) -> Result<Option<Svg>, Figu
             }
         })
         .collect();
+    // A design that identifies nothing at these counts has no half-width to draw (its
+    // report says why); an empty chart would only mislead.
+    if series
+        .iter()
+        .all(|s| s.simulated.is_empty() && s.curve.is_empty())
+    {
+        return Ok(None);
+    }
     let design = &inputs.plan.designs()[d];
     let x_max = nice_ceiling(
         rows.iter()
