@@ -163,9 +163,11 @@ pub fn render(inputs: &Inputs, hypothesis: &str, name: &str) -> Result<Option<Sv
         c.draw_series(std::iter::empty::<Circle<(f64, f64), i32>>())?
             .label("expected information (Wald, normal approx.)")
             .legend(key(None, INK, true));
-        c.draw_series(std::iter::empty::<Circle<(f64, f64), i32>>())?
-            .label("count the search chose, with its interval")
-            .legend(|(x, y)| Circle::new((x + 10, y), 6, INK.stroke_width(2)));
+        if all.iter().any(|s| s.chosen.is_some()) {
+            c.draw_series(std::iter::empty::<Circle<(f64, f64), i32>>())?
+                .label("count the search chose, with its interval")
+                .legend(|(x, y)| Circle::new((x + 10, y), 6, INK.stroke_width(2)));
+        }
         let (bg, border) = legend_style();
         c.configure_series_labels()
             .position(SeriesLabelPosition::LowerRight)
