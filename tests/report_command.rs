@@ -282,3 +282,52 @@ fn readme_figure_is_what_the_command_draws() {
         "docs/figures/colony-group-power.svg is out of date: rerun the command and copy the figure"
     );
 }
+
+/// The folder's every byte is the same on one thread and on two.
+#[test]
+fn report_folder_is_identical_for_one_and_two_threads() {
+    let dir = workspace_with_plans();
+    for (threads, out) in [("1", "one"), ("2", "two")] {
+        let run = common::vigil_env(
+            dir.path(),
+            &[
+                "report",
+                "plans/base-rate-shift.toml",
+                "--out",
+                out,
+                "--experiments",
+                "200",
+                "-q",
+            ],
+            &[("RAYON_NUM_THREADS", threads)],
+        );
+        assert!(run.status.success(), "{}", stderr(&run));
+    }
+    let files = |root: &Path| -> Vec<(String, Vec<u8>)> {
+        let mut out = Vec::new();
+        let mut stack = vec![root.to_path_buf()];
+        while let Some(d) = stack.pop() {
+            for e in std::fs::read_dir(&d).unwrap() {
+                let p = e.unwrap().path();
+                if p.is_dir() {
+                    stack.push(p);
+                } else {
+                    let rel = p.strip_prefix(root).unwrap().display().to_string();
+                    out.push((rel, std::fs::read(&p).unwrap()));
+                }
+            }
+        }
+        out.sort();
+        out
+    };
+    let (one, two) = (
+        files(&dir.path().join("one")),
+        files(&dir.path().join("two")),
+    );
+    assert!(one.len() > 8);
+    assert_eq!(one.len(), two.len());
+    for (a, b) in one.iter().zip(&two) {
+        assert_eq!(a.0, b.0);
+        assert!(a.1 == b.1, "{} differs between thread counts", a.0);
+    }
+}
