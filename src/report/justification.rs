@@ -41,7 +41,7 @@ pub fn paragraphs(
 fn design_words(design: &Design) -> String {
     let record = match (&design.response, design.record) {
         (Response::YesNo, crate::design::RecordKind::Full) => {
-            "a yes/no record (each trial scored as a response or none)".to_string()
+            "a yes/no record (each trial scored as response or no response)".to_string()
         }
         (Response::Rating(s), crate::design::RecordKind::Full) => format!(
             "a {}-category rating record (graded responses; categories {} and above count as a response)",
