@@ -6,7 +6,8 @@
 //!
 //! Data flow, one direction: [`plan`] → scenarios → [`evaluate`] (the [`engine`]'s
 //! simulate → fit → tally, or [`analytic`] exact enumeration and expected information) →
-//! typed results → [`search`] / [`groups`] → [`report`] (every sentence) → [`commands`].
+//! typed results → [`search`] / [`groups`] → [`figures`] (SVG) and [`report`] (every
+//! sentence, the report page) → [`commands`].
 //!
 //! # The library in three calls
 //!
@@ -62,6 +63,8 @@ pub mod design;
 pub mod engine;
 #[doc(hidden)]
 pub mod evaluate;
+#[doc(hidden)]
+pub mod figures;
 #[doc(hidden)]
 pub mod fit;
 #[doc(hidden)]

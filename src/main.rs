@@ -40,6 +40,21 @@ enum Command {
         #[arg(long, short)]
         quiet: bool,
     },
+    /// Run a plan and write a report folder: an HTML page with the figures, the same as
+    /// Markdown, a justification text, the figures as SVG, CSV and JSON.
+    Report {
+        /// The plan file (TOML).
+        plan: PathBuf,
+        /// The folder to write (new, or one an earlier `vigil report` wrote).
+        #[arg(long, value_name = "DIR")]
+        out: PathBuf,
+        /// Simulated experiments per scenario, overriding the plan.
+        #[arg(long, value_name = "N")]
+        experiments: Option<u64>,
+        /// No progress bar.
+        #[arg(long, short)]
+        quiet: bool,
+    },
     /// Expected information over a fine grid of trial counts: asymptotic SEs, the d′–c
     /// correlation and whether each design can tell bias from sensitivity, without simulating.
     Explore {
@@ -116,6 +131,19 @@ fn main() -> ExitCode {
             json,
         }),
         Command::Check { plan } => app::check(&plan),
+        Command::Report {
+            plan,
+            out,
+            experiments,
+            quiet,
+        } => report(
+            app::report::ReportRequest {
+                plan,
+                out,
+                experiments,
+            },
+            quiet,
+        ),
         Command::Run {
             plan,
             csv,
@@ -150,6 +178,14 @@ fn run(req: RunRequest, quiet: bool) -> Result<String, AppError> {
     let prepared = app::prepare(&req)?;
     let bar = vigil::progress::bar(prepared.total_replicates(), quiet);
     let text = app::execute(prepared, &|n| bar.inc(n));
+    bar.finish_and_clear();
+    text
+}
+
+fn report(req: app::report::ReportRequest, quiet: bool) -> Result<String, AppError> {
+    let prepared = app::report::prepare(&req)?;
+    let bar = vigil::progress::bar(prepared.total_replicates(), quiet);
+    let text = app::report::execute(prepared, &|n| bar.inc(n));
     bar.finish_and_clear();
     text
 }

@@ -19,6 +19,13 @@ pub enum AppError {
         path: PathBuf,
         source: std::io::Error,
     },
+    #[error(
+        "{path}: cannot write the report folder: {source}\n  allowed: a new folder, or one an earlier `vigil report` wrote, inside an existing, writable folder"
+    )]
+    OutputFolder {
+        path: PathBuf,
+        source: std::io::Error,
+    },
     /// A bad command-line value, already worded with the option and what is allowed.
     #[error("{0}")]
     Input(String),
@@ -35,6 +42,7 @@ impl AppError {
             Self::Plan(_)
             | Self::Run(_)
             | Self::Output { .. }
+            | Self::OutputFolder { .. }
             | Self::Input(_)
             | Self::Groups(_) => 2,
             Self::Internal(_) => 1,

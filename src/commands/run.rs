@@ -67,24 +67,47 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
     })
 }
 
-/// Runs a prepared plan, writes the output files whole and returns the terminal report.
-pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<String, AppError> {
-    let plan = &run.plan;
-    let summaries = evaluate::run_plan(plan, run.options, progress)?;
+/// Everything a run computes: the scenario summaries, the searches and the groups.
+pub struct RunResults {
+    pub summaries: Vec<ScenarioSummary>,
+    pub searches: Vec<crate::search::SearchResult>,
+    pub groups: Option<crate::groups::GroupReport>,
+}
+
+/// Runs every scenario of the plan, the sample-size search and the groups.
+pub fn results(
+    plan: &Plan,
+    options: RunOptions,
+    progress: &(dyn Fn(u64) + Sync),
+) -> Result<RunResults, AppError> {
+    let summaries = evaluate::run_plan(plan, options, progress)?;
     // With [animals] the targets are judged at group level (the effort split), not for
     // one idealised animal.
-    let searches = if plan.targets().any(plan.hypotheses())
-        && !run.options.exact
-        && plan.animals().is_none()
-    {
-        crate::search::search_plan(plan, progress)?
-    } else {
-        Vec::new()
-    };
-    let groups = match (&plan.animals(), run.options.exact) {
+    let searches =
+        if plan.targets().any(plan.hypotheses()) && !options.exact && plan.animals().is_none() {
+            crate::search::search_plan(plan, progress)?
+        } else {
+            Vec::new()
+        };
+    let groups = match (&plan.animals(), options.exact) {
         (Some(_), false) => Some(crate::groups::run_groups(plan, progress)?),
         _ => None,
     };
+    Ok(RunResults {
+        summaries,
+        searches,
+        groups,
+    })
+}
+
+/// Runs a prepared plan, writes the output files whole and returns the terminal report.
+pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<String, AppError> {
+    let plan = &run.plan;
+    let RunResults {
+        summaries,
+        searches,
+        groups,
+    } = results(plan, run.options, progress)?;
     write_outputs(
         plan,
         &summaries,

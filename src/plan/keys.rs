@@ -25,6 +25,7 @@ pub const TABLE_KEYS: &[(&str, &[&str])] = &[
             "rate_correction",
             "alpha",
             "max_trials",
+            "values_source",
         ],
     ),
     (
@@ -98,6 +99,9 @@ pub fn allowed(key: &str) -> &'static str {
         "observer" => "an [observer] table with d_prime and criterion",
         "design" => "one or more [[design]] tables",
         "title" => "text in quotes, e.g. title = \"Alarm-call playback, pilot\"",
+        "values_source" => {
+            "text in quotes naming where the hypothesised values come from (a pilot, a paper), 1 to 500 characters on one line, e.g. values_source = \"pilot 2025, 6 voles\""
+        }
         "seed" => "a whole number from 0 to 9223372036854775807",
         "experiments" => {
             "a whole number of simulated experiments from 1 to 100000000 (default 2000)"

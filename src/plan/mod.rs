@@ -39,6 +39,9 @@ pub struct Study {
     pub alpha: f64,
     /// Largest trial count per condition the sample-size search may propose.
     pub max_trials: u32,
+    /// Where the hypothesised values come from, in the user's words (for the justification).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub values_source: Option<String>,
 }
 
 /// How the observer's criterion was given.

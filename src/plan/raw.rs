@@ -32,6 +32,7 @@ pub struct RawStudy {
     pub rate_correction: Option<Spanned<String>>,
     pub alpha: Option<Spanned<f64>>,
     pub max_trials: Option<Spanned<i64>>,
+    pub values_source: Option<Spanned<String>>,
 }
 
 /// `[observer]`: the hypothesised animal.

@@ -83,3 +83,42 @@ pub fn at(
             .map(f64::abs),
     })
 }
+
+/// The normal-approximation power of one hypothesis at one trial count.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PowerCurve {
+    pub hypothesis: String,
+    /// `(trials, power)`, in the order of the grid; counts where the information is singular
+    /// are left out.
+    pub points: Vec<(u32, f64)>,
+}
+
+/// The expected-information power curve of every hypothesis this design can test, over
+/// `grid` (trial counts per condition). Hypotheses whose null is true still get a curve (it
+/// stays near α).
+pub fn power_curves(plan: &Plan, design: &Design, grid: &[u32]) -> Vec<PowerCurve> {
+    let Some(model) = analysis_model(plan, design, design.trials[0]) else {
+        return Vec::new();
+    };
+    let tested: Vec<(Contrast, &Hypothesis)> = plan
+        .hypotheses()
+        .iter()
+        .filter(|h| h.kind != crate::design::goals::TestKind::GroupDifference)
+        .filter_map(|h| crate::power::contrast(plan, design, &model, h).map(|c| (c, h)))
+        .collect();
+    let mut curves: Vec<PowerCurve> = tested
+        .iter()
+        .map(|(_, h)| PowerCurve {
+            hypothesis: h.name.clone(),
+            points: Vec::new(),
+        })
+        .collect();
+    for &n in grid {
+        if let Some(p) = at(plan, design, n, &tested, &[]) {
+            for (curve, power) in curves.iter_mut().zip(p.power) {
+                curve.points.push((n, power));
+            }
+        }
+    }
+    curves
+}

@@ -15,13 +15,20 @@ pub mod ideal_scan_text;
 pub mod ideal_text;
 pub mod identification_text;
 pub mod json_out;
+pub mod justification;
 pub mod output_file;
+pub mod output_folder;
+pub mod page;
+pub mod page_html;
+pub mod page_markdown;
 pub mod reading;
+pub mod report_page;
 pub mod style;
 pub mod terminal;
 pub mod verdict;
 
 pub use output_file::PendingFile;
+pub use output_folder::PendingFolder;
 
 /// The caution every report carries: results rest on assumptions; animal numbers are
 /// decided with the local animal-welfare body.

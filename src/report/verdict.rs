@@ -5,11 +5,72 @@ use super::style::{new_table, right_align};
 use crate::search::{SearchOutcome, SearchResult, Target, TargetValue};
 use std::fmt::Write;
 
-fn value_text(v: &TargetValue) -> String {
+/// A target's value at the answer as the verdict table shows it (power with its Wilson
+/// interval, other targets ± their Monte Carlo SE); the justification reuses it.
+pub fn value_text(v: &TargetValue) -> String {
     match v.target {
         Target::Power { .. } => format!("{:.3} ({:.3}–{:.3})", v.value, v.low, v.high),
         _ => format!("{:.3} ± {:.3}", v.value, (v.high - v.low) / 2.0),
     }
+}
+
+/// The answer's count as the verdict table shows it: "412 ± 37", or "412" with no band.
+pub fn trials_text(trials: u32, band: u32) -> String {
+    if band > 0 {
+        format!("{trials} ± {band}")
+    } else {
+        trials.to_string()
+    }
+}
+
+/// Column names of the verdict table.
+pub const HEADER: [&str; 5] = [
+    "design",
+    "trials per condition",
+    "binding target",
+    "at that count",
+    "expected information said",
+];
+
+/// The verdict table's cells, one row per design (the terminal and the report page share them).
+pub fn rows(results: &[SearchResult], max_trials: u32) -> Vec<[String; 5]> {
+    results
+        .iter()
+        .map(|r| match &r.outcome {
+            SearchOutcome::Found {
+                trials,
+                band,
+                binding,
+                values,
+                asymptotic_trials,
+                ..
+            } => [
+                r.design.clone(),
+                trials_text(*trials, *band),
+                binding.describe(),
+                values
+                    .iter()
+                    .find(|v| &v.target == binding)
+                    .map(value_text)
+                    .unwrap_or_default(),
+                asymptotic_trials.map_or_else(|| "–".into(), |n| n.to_string()),
+            ],
+            SearchOutcome::NotReached { .. } => [
+                r.design.clone(),
+                format!("more than {max_trials}"),
+                "see below".into(),
+                String::new(),
+                String::new(),
+            ],
+            SearchOutcome::NoTargets => [
+                r.design.clone(),
+                "–".into(),
+                "no target applies".into(),
+                String::new(),
+                String::new(),
+            ],
+        })
+        .collect()
 }
 
 /// The verdict block of the terminal report (empty when nothing was searched).
@@ -25,59 +86,9 @@ pub fn render(results: &[SearchResult], max_trials: u32) -> String {
         out,
         "■ Verdict: the smallest experiment that meets every target"
     );
-    let mut t = new_table(vec![
-        "design",
-        "trials per condition",
-        "binding target",
-        "at that count",
-        "expected information said",
-    ]);
-    for r in results {
-        match &r.outcome {
-            SearchOutcome::Found {
-                trials,
-                band,
-                binding,
-                values,
-                asymptotic_trials,
-                ..
-            } => {
-                let at = values
-                    .iter()
-                    .find(|v| &v.target == binding)
-                    .map(value_text)
-                    .unwrap_or_default();
-                t.add_row(vec![
-                    r.design.clone(),
-                    if *band > 0 {
-                        format!("{trials} ± {band}")
-                    } else {
-                        trials.to_string()
-                    },
-                    binding.describe(),
-                    at,
-                    asymptotic_trials.map_or_else(|| "–".into(), |n| n.to_string()),
-                ]);
-            }
-            SearchOutcome::NotReached { .. } => {
-                t.add_row(vec![
-                    r.design.clone(),
-                    format!("more than {max_trials}"),
-                    "see below".into(),
-                    String::new(),
-                    String::new(),
-                ]);
-            }
-            SearchOutcome::NoTargets => {
-                t.add_row(vec![
-                    r.design.clone(),
-                    "–".into(),
-                    "no target applies".into(),
-                    String::new(),
-                    String::new(),
-                ]);
-            }
-        }
+    let mut t = new_table(HEADER.to_vec());
+    for row in rows(results, max_trials) {
+        t.add_row(row.to_vec());
     }
     right_align(&mut t, 1..2);
     let _ = writeln!(out, "{t}");

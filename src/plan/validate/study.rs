@@ -68,8 +68,13 @@ pub(super) fn study(ctx: &Ctx, raw: &RawPlan) -> Result<Study, PlanError> {
             ));
         }
     };
+    let values_source = match &s.values_source {
+        None => None,
+        Some(v) => Some(values_source(ctx, v)?),
+    };
     Ok(Study {
         title: s.title.clone(),
+        values_source,
         seed: seed as u64,
         experiments,
         confidence,
@@ -77,4 +82,28 @@ pub(super) fn study(ctx: &Ctx, raw: &RawPlan) -> Result<Study, PlanError> {
         alpha,
         max_trials,
     })
+}
+
+/// Longest `values_source` (a citation, not an essay: it is pasted into one sentence).
+pub const MAX_VALUES_SOURCE: usize = 500;
+
+/// The user's source of the hypothesised values: one line of 1 to 500 characters.
+fn values_source(ctx: &Ctx, v: &toml::Spanned<String>) -> Result<String, PlanError> {
+    let text = v.get_ref().trim();
+    let problem = if text.is_empty() {
+        Some("is empty".to_string())
+    } else if text.chars().count() > MAX_VALUES_SOURCE {
+        Some(format!(
+            "has {} characters, more than {MAX_VALUES_SOURCE}",
+            text.chars().count()
+        ))
+    } else if text.chars().any(char::is_control) {
+        Some("holds a line break or another control character".to_string())
+    } else {
+        None
+    };
+    match problem {
+        Some(p) => Err(ctx.at(v, "values_source", p)),
+        None => Ok(text.to_string()),
+    }
 }
