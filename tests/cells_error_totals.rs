@@ -152,7 +152,7 @@ fn census_identifies_and_larger_census_shrinks_the_errors() {
 #[test]
 fn two_condition_census_design_end_to_end() {
     use vigil::cells::likelihood::Counts;
-    use vigil::cells::newton::{FitOptions, Start, StopReason, fit};
+    use vigil::cells::newton::{NewtonOptions, Start, StopReason, fit};
     use vigil::cells::profile::{Bound, ProfileOptions, ProfileTarget, profile_interval};
     use vigil::cells::spec::Role;
 
@@ -193,7 +193,13 @@ fn two_condition_census_design_end_to_end() {
         ],
     )
     .unwrap();
-    let f = fit(&model, &counts, Start::Hypothesised, &FitOptions::default()).unwrap();
+    let f = fit(
+        &model,
+        &counts,
+        Start::Hypothesised,
+        &NewtonOptions::default(),
+    )
+    .unwrap();
     assert_eq!(f.stop, StopReason::Converged);
     let target = ProfileTarget::DPrime {
         condition: "dawn".into(),

@@ -2,7 +2,7 @@
 
 use vigil::cells::information::{expected_information, precision};
 use vigil::cells::likelihood::Counts;
-use vigil::cells::newton::{FitOptions, Start, StopReason, fit};
+use vigil::cells::newton::{NewtonOptions, Start, StopReason, fit};
 use vigil::cells::observation_model::ObservationModel;
 use vigil::cells::spec::{ConditionSpec, Record, Role};
 
@@ -63,7 +63,7 @@ fn joint_fit_of_invented_counts_pools_the_two_conditions() {
         ],
     )
     .unwrap();
-    let f = fit(&joint, &counts, Start::Crude, &FitOptions::default()).unwrap();
+    let f = fit(&joint, &counts, Start::Crude, &NewtonOptions::default()).unwrap();
     assert_eq!(f.stop, StopReason::Converged);
     let p = precision(&joint, &f.theta, &f.observed_information)
         .unwrap()
@@ -75,7 +75,7 @@ fn joint_fit_of_invented_counts_pools_the_two_conditions() {
     ] {
         let alone = ObservationModel::new(vec![condition(name, ns, nn, 1.0, 0.0, false)]).unwrap();
         let counts = Counts::new(&alone, rows).unwrap();
-        let g = fit(&alone, &counts, Start::Crude, &FitOptions::default()).unwrap();
+        let g = fit(&alone, &counts, Start::Crude, &NewtonOptions::default()).unwrap();
         assert_eq!(g.stop, StopReason::Converged);
         let q = precision(&alone, &g.theta, &g.observed_information)
             .unwrap()

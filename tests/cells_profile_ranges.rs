@@ -3,7 +3,7 @@
 
 use vigil::cells::information::precision;
 use vigil::cells::likelihood::Counts;
-use vigil::cells::newton::{FitOptions, Start, StopReason, fit};
+use vigil::cells::newton::{NewtonOptions, Start, StopReason, fit};
 use vigil::cells::observation_model::ObservationModel;
 use vigil::cells::profile::{Bound, ProfileOptions, ProfileTarget, profile_interval};
 use vigil::cells::spec::{BaseRate, ConditionSpec, Record};
@@ -18,7 +18,13 @@ fn not_identified_design_gives_an_unbounded_range() {
     let model =
         ObservationModel::new(vec![ConditionSpec::yes_no("field", rec, 1.5, 0.3, 0.3)]).unwrap();
     let counts = Counts::new(&model, vec![vec![30.0, 25.0, 145.0]]).unwrap();
-    let f = fit(&model, &counts, Start::Hypothesised, &FitOptions::default()).unwrap();
+    let f = fit(
+        &model,
+        &counts,
+        Start::Hypothesised,
+        &NewtonOptions::default(),
+    )
+    .unwrap();
     assert_eq!(f.stop, StopReason::NotIdentified);
     let target = ProfileTarget::DPrime {
         condition: "field".into(),
@@ -42,7 +48,7 @@ fn identified_design_matches_wald_at_large_n() {
     let model =
         ObservationModel::new(vec![ConditionSpec::yes_no("lab", rec, 1.0, 0.0, 0.5)]).unwrap();
     let counts = Counts::new(&model, vec![vec![1000.0, 4000.0], vec![4000.0, 1000.0]]).unwrap();
-    let f = fit(&model, &counts, Start::Crude, &FitOptions::default()).unwrap();
+    let f = fit(&model, &counts, Start::Crude, &NewtonOptions::default()).unwrap();
     assert_eq!(f.stop, StopReason::Converged);
     let p = precision(&model, &f.theta, &f.observed_information)
         .unwrap()
@@ -87,7 +93,7 @@ fn bad_targets_and_options_are_errors() {
     spec.roles.criterion = vigil::cells::spec::Role::Fixed;
     let model = ObservationModel::new(vec![spec]).unwrap();
     let counts = Counts::new(&model, vec![vec![10.0, 40.0], vec![35.0, 15.0]]).unwrap();
-    let f = fit(&model, &counts, Start::Crude, &FitOptions::default()).unwrap();
+    let f = fit(&model, &counts, Start::Crude, &NewtonOptions::default()).unwrap();
     let c = ProfileTarget::Criterion {
         condition: "lab".into(),
     };

@@ -3,7 +3,7 @@
 use vigil::cells::degeneracy::{Degeneracy, model_degeneracy};
 use vigil::cells::information::{expected_information, precision};
 use vigil::cells::likelihood::Counts;
-use vigil::cells::newton::{FitOptions, Start, StopReason, fit};
+use vigil::cells::newton::{NewtonOptions, Start, StopReason, fit};
 use vigil::cells::observation_model::ObservationModel;
 use vigil::cells::spec::{ConditionSpec, Record};
 use vigil::model::normal;
@@ -85,7 +85,7 @@ fn general_fit_equals_the_closed_form() {
             vec![vec![ns as f64 - hits, hits], vec![nn as f64 - fas, fas]],
         )
         .unwrap();
-        let f = fit(&model, &counts, Start::Crude, &FitOptions::default()).unwrap();
+        let f = fit(&model, &counts, Start::Crude, &NewtonOptions::default()).unwrap();
         assert_eq!(f.stop, StopReason::Converged);
         assert!(f.iterations < 20);
         let (h, fa) = (hits / ns as f64, fas / nn as f64);
@@ -109,21 +109,27 @@ fn fit_reports_iterations_and_never_panics_on_extreme_counts() {
     // iteration, and says why.
     let model = yes_no(20, 20, 1.0, 0.0);
     let counts = Counts::new(&model, vec![vec![0.0, 20.0], vec![20.0, 0.0]]).unwrap();
-    let f = fit(&model, &counts, Start::Hypothesised, &FitOptions::default()).unwrap();
+    let f = fit(
+        &model,
+        &counts,
+        Start::Hypothesised,
+        &NewtonOptions::default(),
+    )
+    .unwrap();
     assert_eq!((f.stop, f.iterations), (StopReason::Degenerate, 0));
     assert_eq!(
         model_degeneracy(&model, counts.cells()),
         Some((0, Degeneracy::PresentAboveAbsent { at: 1 }))
     );
     assert!(f.theta.iter().all(|t| t.is_finite()));
-    assert!(f.iterations <= FitOptions::default().max_iterations);
+    assert!(f.iterations <= NewtonOptions::default().max_iterations);
     assert!(Counts::new(&model, vec![vec![1.0, -2.0], vec![3.0, 4.0]]).is_err());
     assert!(
         fit(
             &model,
             &counts,
             Start::Theta(vec![1.0]),
-            &FitOptions::default()
+            &NewtonOptions::default()
         )
         .is_err()
     );

@@ -16,12 +16,15 @@ use proptest::prelude::*;
 use serde_json::Value;
 use vigil::cells::information::precision;
 use vigil::cells::likelihood::Counts;
-use vigil::cells::newton::{Fit, FitOptions as GeneralOptions, Start, StopReason, fit as general};
+use vigil::cells::newton::{
+    Fit, NewtonOptions as GeneralOptions, Start, StopReason, fit as general,
+};
 use vigil::cells::observation_model::ObservationModel;
 use vigil::cells::spec::{ConditionSpec, NaturalValues, Record, Role};
 use vigil::fit::fit_yes_no;
 use vigil::fit::rating::{
-    FitError, FitOptions, FitStatus, RatingTable, apply_correction, fit as rating_fit, measures,
+    FitError, FitStatus, RatingFitOptions, RatingTable, apply_correction, fit as rating_fit,
+    measures,
 };
 use vigil::vocab::RateCorrection;
 
@@ -67,9 +70,9 @@ fn agree(a: &Answer, b: &Answer) -> Result<(), String> {
 
 /// The rating fast path: `Ok(None)` for a degenerate table, `Err` for a failed fit.
 fn fast(table: &RatingTable, fix_sigma: bool, boundary: usize) -> Result<Option<Answer>, String> {
-    let options = FitOptions {
+    let options = RatingFitOptions {
         fix_sigma,
-        ..FitOptions::default()
+        ..RatingFitOptions::default()
     };
     let f = match rating_fit(table, &options) {
         Err(FitError::Degenerate(_)) => return Ok(None),

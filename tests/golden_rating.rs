@@ -20,7 +20,7 @@
 //!   relative, covariances ≤ 3e-6·SD_i·SD_j.
 
 use serde_json::Value;
-use vigil::fit::rating::{FitOptions, FitStatus, Param, RatingTable, fit, measures};
+use vigil::fit::rating::{FitStatus, Param, RatingFitOptions, RatingTable, fit, measures};
 
 mod common;
 
@@ -101,9 +101,9 @@ fn table(case: &Value) -> RatingTable {
 
 #[test]
 fn equal_variance_matches_statsmodels_ordered_probit() {
-    let options = FitOptions {
+    let options = RatingFitOptions {
         fix_sigma: true,
-        ..FitOptions::default()
+        ..RatingFitOptions::default()
     };
     for case in load("rating_equal_variance.json") {
         let name = case["name"].as_str().unwrap_or("?").to_owned();
@@ -137,7 +137,7 @@ fn equal_variance_matches_statsmodels_ordered_probit() {
 fn unequal_variance_matches_scipy_maximisation() {
     for case in load("rating_unequal_variance.json") {
         let name = case["name"].as_str().unwrap_or("?").to_owned();
-        let f = fit(&table(&case), &FitOptions::default()).expect("not degenerate");
+        let f = fit(&table(&case), &RatingFitOptions::default()).expect("not degenerate");
         assert_eq!(f.status, FitStatus::Converged, "{name}");
         let want_cov = matrix(&case["cov_natural"]);
         let tol = estimate_tol(&want_cov, number(&case, "gradient_max_abs"));

@@ -5,7 +5,7 @@
 
 use std::path::Path;
 use vigil::evaluate::{RunOptions, run_plan};
-use vigil::fit::rating::{FitOptions, RatingTable, apply_correction, fit, measures};
+use vigil::fit::rating::{RatingFitOptions, RatingTable, apply_correction, fit, measures};
 use vigil::fit::{fit_yes_no, z_variance};
 use vigil::plan::Plan;
 use vigil::vocab::Quantity;
@@ -62,9 +62,9 @@ fn recovers_parameters_and_covers_at_large_counts() {
 
 #[test]
 fn two_category_rating_fit_equals_closed_form() {
-    let options = FitOptions {
+    let options = RatingFitOptions {
         fix_sigma: true,
-        ..FitOptions::default()
+        ..RatingFitOptions::default()
     };
     for rule in [
         RateCorrection::LogLinear,

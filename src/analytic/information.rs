@@ -22,7 +22,7 @@ use crate::cells::error::{InputError, SpecError};
 use crate::cells::identifiability::assess;
 use crate::cells::information::{ConditionPrecision, UnitInformation, precision};
 use crate::cells::likelihood::Counts;
-use crate::cells::newton::{FitOptions, Start, fit};
+use crate::cells::newton::{NewtonOptions, Start, fit};
 use crate::cells::observation_model::ObservationModel;
 use crate::cells::profile::{ProfileOptions, ProfileTarget, profile_interval};
 use crate::cells::verdict::{ParameterNames, ProfileRange, Verdict, from_assessment};
@@ -254,7 +254,7 @@ impl DesignInformation {
             level: self.level,
             half_width: PROFILE_WINDOW,
             tolerance: PROFILE_TOLERANCE,
-            fit: FitOptions::default(),
+            fit: NewtonOptions::default(),
         };
         let start = Start::Theta(self.theta.clone());
         let best = fit(&self.model, &counts, start, &options.fit).map_err(input_err)?;

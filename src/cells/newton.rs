@@ -58,7 +58,7 @@ pub enum Start {
 
 /// Limits and tolerances of the fit.
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub struct FitOptions {
+pub struct NewtonOptions {
     pub max_iterations: usize,
     /// Stop when the Newton decrement gᵀ(−H)⁻¹g (twice the predicted gain in lnL) is below this.
     /// The decrement is the squared length of the remaining Newton step in standard errors, so
@@ -69,9 +69,9 @@ pub struct FitOptions {
     pub max_step: f64,
 }
 
-impl Default for FitOptions {
+impl Default for NewtonOptions {
     fn default() -> Self {
-        FitOptions {
+        NewtonOptions {
             max_iterations: 100,
             tolerance: 1e-16,
             max_step: 3.0,
@@ -100,7 +100,7 @@ pub fn fit(
     model: &ObservationModel,
     counts: &Counts,
     start: Start,
-    options: &FitOptions,
+    options: &NewtonOptions,
 ) -> Result<Fit, InputError> {
     let theta0 = match start {
         Start::Hypothesised => model.hypothesised_theta(),
@@ -138,7 +138,7 @@ pub(crate) fn maximise(
     counts: &Counts,
     theta0: Vec<f64>,
     free: &[bool],
-    options: &FitOptions,
+    options: &NewtonOptions,
 ) -> Fit {
     let mut ws = Workspace::borrow_spare();
     let mut theta = theta0;
@@ -378,7 +378,7 @@ mod tests {
     fn nothing_free_converges_at_once() {
         let model = yes_no(true);
         let counts = Counts::new(&model, vec![vec![9.0, 21.0], vec![22.0, 8.0]]).unwrap();
-        let f = fit(&model, &counts, Start::Crude, &FitOptions::default()).unwrap();
+        let f = fit(&model, &counts, Start::Crude, &NewtonOptions::default()).unwrap();
         assert_eq!((f.stop, f.iterations), (StopReason::Converged, 0));
     }
 
@@ -387,12 +387,12 @@ mod tests {
         let model = yes_no(false);
         let counts = Counts::new(&model, vec![vec![9.0, 21.0], vec![22.0, 8.0]]).unwrap();
         let far = Start::Theta(vec![-6.0, 7.0]);
-        let f = fit(&model, &counts, far.clone(), &FitOptions::default()).unwrap();
+        let f = fit(&model, &counts, far.clone(), &NewtonOptions::default()).unwrap();
         assert_eq!(f.stop, StopReason::Converged, "{f:?}");
         assert!(f.max_abs_gradient < 1e-6);
-        let short = FitOptions {
+        let short = NewtonOptions {
             max_iterations: 1,
-            ..FitOptions::default()
+            ..NewtonOptions::default()
         };
         let g = fit(&model, &counts, far, &short).unwrap();
         assert_eq!((g.stop, g.iterations), (StopReason::IterationLimit, 1));

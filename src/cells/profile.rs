@@ -12,7 +12,7 @@ use nalgebra::DMatrix;
 use crate::cells::error::InputError;
 use crate::cells::identifiability::scaled_inverse;
 use crate::cells::likelihood::Counts;
-use crate::cells::newton::{Fit, FitOptions, StopReason, maximise};
+use crate::cells::newton::{Fit, NewtonOptions, StopReason, maximise};
 use crate::cells::observation_model::ObservationModel;
 use crate::cells::parameter_map::{SLOT_CRITERION, SLOT_D_PRIME, Slot};
 use crate::model::normal;
@@ -38,7 +38,7 @@ pub struct ProfileOptions {
     /// Width of the final bracket around each crossing.
     pub tolerance: f64,
     /// Options for the inner maximisations.
-    pub fit: FitOptions,
+    pub fit: NewtonOptions,
 }
 
 impl Default for ProfileOptions {
@@ -47,7 +47,7 @@ impl Default for ProfileOptions {
             level: 0.95,
             half_width: 10.0,
             tolerance: 1e-6,
-            fit: FitOptions::default(),
+            fit: NewtonOptions::default(),
         }
     }
 }

@@ -14,7 +14,7 @@ use crate::cells::coarsening::BlockKind;
 use crate::cells::error::SpecError;
 use crate::cells::information::{Precision, precision};
 use crate::cells::likelihood::Counts;
-use crate::cells::newton::{Fit, FitOptions, Start, StopReason, fit};
+use crate::cells::newton::{Fit, NewtonOptions, Start, StopReason, fit};
 use crate::cells::observation_model::ObservationModel;
 use crate::design::quantities::reported_quantities;
 use crate::infer::{likelihood_ratio_test, signed_root_test, wald_test};
@@ -41,7 +41,7 @@ pub struct GeneralFit {
     /// Whether each block is a full row of one stimulus class (the correction applies).
     full_rows: Vec<bool>,
     correction: RateCorrection,
-    options: FitOptions,
+    options: NewtonOptions,
 }
 
 /// A converged general fit of one dataset, with the counts it was fitted to.
@@ -70,7 +70,7 @@ impl GeneralFit {
             model,
             full_rows,
             correction,
-            options: FitOptions::default(),
+            options: NewtonOptions::default(),
         }
     }
 

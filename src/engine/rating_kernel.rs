@@ -6,7 +6,8 @@
 use super::tally::{DatasetOutcome, EstimateTally, QuantityTally};
 use crate::design::{Condition, RatingScale};
 use crate::fit::rating::{
-    FitOptions, FitStatus, MAX_CATEGORIES, RatingTable, apply_correction, degeneracy, fit, measures,
+    FitStatus, MAX_CATEGORIES, RatingFitOptions, RatingTable, apply_correction, degeneracy, fit,
+    measures,
 };
 use crate::model::{Observer, normal};
 use crate::vocab::Quantity;
@@ -18,7 +19,7 @@ pub struct RatingEstimator {
     categories: usize,
     boundary: usize,
     correction: RateCorrection,
-    options: FitOptions,
+    options: RatingFitOptions,
     template: Vec<QuantityTally>,
 }
 
@@ -67,9 +68,9 @@ impl RatingEstimator {
             categories: scale.categories,
             boundary: scale.boundary,
             correction,
-            options: FitOptions {
+            options: RatingFitOptions {
                 fix_sigma: scale.fix_sigma,
-                ..FitOptions::default()
+                ..RatingFitOptions::default()
             },
             template,
         }

@@ -8,7 +8,7 @@ use super::animal::{AnimalEstimate, AnimalPath, PooledEstimate};
 use super::population::Deviation;
 use crate::design::{Condition, RatingScale, Split};
 use crate::fit::rating::{
-    FitOptions, FitStatus, MAX_CATEGORIES, RatingMeasures, RatingParams, RatingTable,
+    FitStatus, MAX_CATEGORIES, RatingFitOptions, RatingMeasures, RatingParams, RatingTable,
     apply_correction, degeneracy, fit, measures,
 };
 use crate::model::Observer;
@@ -32,7 +32,7 @@ pub struct RatingAnimals {
     lapse: Option<crate::model::LapseSpec>,
     split: Split,
     correction: RateCorrection,
-    options: FitOptions,
+    options: RatingFitOptions,
 }
 
 impl RatingAnimals {
@@ -52,9 +52,9 @@ impl RatingAnimals {
             lapse: observer.lapse,
             split,
             correction,
-            options: FitOptions {
+            options: RatingFitOptions {
                 fix_sigma: scale.fix_sigma,
-                ..FitOptions::default()
+                ..RatingFitOptions::default()
             },
         }
     }

@@ -21,7 +21,7 @@ use super::population::Population;
 use crate::cells::cell_probabilities::{Order, cell_probabilities};
 use crate::cells::information::{UnitInformation, precision};
 use crate::cells::likelihood::Counts;
-use crate::cells::newton::{FitOptions, Start, StopReason, fit};
+use crate::cells::newton::{NewtonOptions, Start, StopReason, fit};
 use crate::cells::observation_model::ObservationModel;
 use crate::cells::parameter_map::{SLOT_CRITERION, SLOT_D_PRIME, SLOT_LN_SIGMA, Slot};
 use crate::design::Design;
@@ -179,7 +179,7 @@ fn pseudo_true(
         analysis,
         &counts,
         Start::Hypothesised,
-        &FitOptions::default(),
+        &NewtonOptions::default(),
     )
     .ok()?;
     (result.stop == StopReason::Converged).then_some(result.theta)

@@ -5,8 +5,8 @@
 
 pub mod check_text;
 pub mod comparison;
-pub mod coverage_notes;
 pub mod conditions_text;
+pub mod coverage_notes;
 pub mod csv_out;
 pub mod explore_text;
 pub mod format;

@@ -16,7 +16,7 @@ use crate::cells::degeneracy::Degeneracy;
 
 /// Solver settings.
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub struct FitOptions {
+pub struct RatingFitOptions {
     /// Hold σ = 1 (equal-variance model); θ then has no ln σ entry.
     pub fix_sigma: bool,
     /// Newton iterations allowed before stopping with [`FitStatus::IterationLimit`].
@@ -27,10 +27,10 @@ pub struct FitOptions {
     pub gradient_tol: f64,
 }
 
-impl Default for FitOptions {
+impl Default for RatingFitOptions {
     /// σ free, 50 iterations, tolerance 1e-8 standard errors.
     fn default() -> Self {
-        FitOptions {
+        RatingFitOptions {
             fix_sigma: false,
             max_iter: 50,
             gradient_tol: 1e-8,
@@ -155,7 +155,7 @@ impl RatingFit {
 
 /// Fits the unequal-variance (or, with `fix_sigma`, equal-variance) Gaussian rating model by
 /// maximum likelihood from zROC starting values. Degenerate tables are refused, not fitted.
-pub fn fit(table: &RatingTable, options: &FitOptions) -> Result<RatingFit, FitError> {
+pub fn fit(table: &RatingTable, options: &RatingFitOptions) -> Result<RatingFit, FitError> {
     if let Some(reason) = degeneracy(table, options.fix_sigma) {
         return Err(FitError::Degenerate(reason));
     }
@@ -165,7 +165,7 @@ pub fn fit(table: &RatingTable, options: &FitOptions) -> Result<RatingFit, FitEr
 /// As [`fit`], from given starting values (σ is replaced by 1 when `fix_sigma`).
 pub fn fit_from(
     table: &RatingTable,
-    options: &FitOptions,
+    options: &RatingFitOptions,
     start: &RatingParams,
 ) -> Result<RatingFit, FitError> {
     if start.categories() != table.categories() {
@@ -180,7 +180,7 @@ pub fn fit_from(
     Ok(run(table, start, options))
 }
 
-fn run(table: &RatingTable, start: &RatingParams, options: &FitOptions) -> RatingFit {
+fn run(table: &RatingTable, start: &RatingParams, options: &RatingFitOptions) -> RatingFit {
     let start = if options.fix_sigma {
         start.with_sigma(1.0)
     } else {

@@ -13,10 +13,10 @@ fn yes_no(hits: f64, n_present: f64, false_alarms: f64, n_absent: f64) -> Rating
     .unwrap()
 }
 
-fn fixed() -> FitOptions {
-    FitOptions {
+fn fixed() -> RatingFitOptions {
+    RatingFitOptions {
         fix_sigma: true,
-        ..FitOptions::default()
+        ..RatingFitOptions::default()
     }
 }
 
@@ -154,9 +154,9 @@ fn recovers_the_parameters_from_expected_counts() {
             if fix_sigma && sigma != 1.0 {
                 continue;
             }
-            let options = FitOptions {
+            let options = RatingFitOptions {
                 fix_sigma,
-                ..FitOptions::default()
+                ..RatingFitOptions::default()
             };
             let fit = fit(&table, &options).unwrap();
             assert_eq!(fit.status, FitStatus::Converged, "μ = {mu}, σ = {sigma}");
@@ -174,7 +174,7 @@ fn recovers_the_parameters_from_expected_counts() {
 fn converges_from_bad_starts() {
     let table =
         RatingTable::new(&[14.0, 12.0, 9.0, 10.0, 5.0], &[3.0, 6.0, 8.0, 13.0, 20.0]).unwrap();
-    let reference = fit(&table, &FitOptions::default()).unwrap();
+    let reference = fit(&table, &RatingFitOptions::default()).unwrap();
     assert_eq!(reference.status, FitStatus::Converged);
     let starts: [(f64, f64, [f64; 4]); 5] = [
         (-3.0, 4.0, [-5.0, -4.9, -4.8, -4.7]),
@@ -185,7 +185,7 @@ fn converges_from_bad_starts() {
     ];
     for (mu, sigma, criteria) in starts {
         let start = RatingParams::new(mu, sigma, &criteria).unwrap();
-        let f = fit_from(&table, &FitOptions::default(), &start).unwrap();
+        let f = fit_from(&table, &RatingFitOptions::default(), &start).unwrap();
         assert_eq!(
             f.status,
             FitStatus::Converged,
@@ -210,7 +210,7 @@ fn converges_despite_noise_in_the_normal_cdf() {
         &[1.5, 2.5, 2.5, 3.5, 9.5, 13.5],
     )
     .unwrap();
-    for options in [fixed(), FitOptions::default()] {
+    for options in [fixed(), RatingFitOptions::default()] {
         let f = fit(&table, &options).unwrap();
         assert_eq!(f.status, FitStatus::Converged, "{options:?}");
         assert!(f.iterations < 10);
@@ -220,7 +220,7 @@ fn converges_despite_noise_in_the_normal_cdf() {
 #[test]
 fn the_maximum_is_a_maximum() {
     let table = RatingTable::new(&[7.0, 11.0, 9.0, 3.0], &[2.0, 5.0, 12.0, 11.0]).unwrap();
-    let f = fit(&table, &FitOptions::default()).unwrap();
+    let f = fit(&table, &RatingFitOptions::default()).unwrap();
     let best = likelihood::ln_likelihood(&table, f.params());
     assert!((best - f.ln_likelihood).abs() < 1e-12);
     for (dm, ds, dk) in [
@@ -240,7 +240,7 @@ fn the_maximum_is_a_maximum() {
 fn degenerate_tables_are_refused() {
     let empty_column = RatingTable::new(&[5.0, 0.0, 5.0], &[2.0, 0.0, 8.0]).unwrap();
     assert_eq!(
-        fit(&empty_column, &FitOptions::default()),
+        fit(&empty_column, &RatingFitOptions::default()),
         Err(FitError::Degenerate(Degeneracy::EmptyCategory {
             category: 1
         }))
@@ -253,7 +253,7 @@ fn degenerate_tables_are_refused() {
     // σ free needs at least three categories.
     let two = yes_no(15.0, 20.0, 3.0, 20.0);
     assert_eq!(
-        fit(&two, &FitOptions::default()),
+        fit(&two, &RatingFitOptions::default()),
         Err(FitError::Degenerate(Degeneracy::SigmaWithTwoCategories))
     );
     assert!(fit(&two, &fixed()).is_ok());
@@ -264,7 +264,7 @@ fn start_must_match_the_table() {
     let table = RatingTable::new(&[5.0, 3.0, 2.0], &[2.0, 3.0, 5.0]).unwrap();
     let start = RatingParams::new(1.0, 1.0, &[0.0]).unwrap();
     assert_eq!(
-        fit_from(&table, &FitOptions::default(), &start),
+        fit_from(&table, &RatingFitOptions::default(), &start),
         Err(FitError::StartMismatch { start: 2, table: 3 })
     );
 }
@@ -275,9 +275,9 @@ fn iteration_limit_is_reported_not_hidden() {
         RatingTable::new(&[14.0, 12.0, 9.0, 10.0, 5.0], &[3.0, 6.0, 8.0, 13.0, 20.0]).unwrap();
     let start = RatingParams::new(-3.0, 4.0, &[-5.0, -4.9, -4.8, -4.7]).unwrap();
     for max_iter in [0, 1, 2] {
-        let options = FitOptions {
+        let options = RatingFitOptions {
             max_iter,
-            ..FitOptions::default()
+            ..RatingFitOptions::default()
         };
         let f = fit_from(&table, &options, &start).unwrap();
         assert_eq!(f.status, FitStatus::IterationLimit);
@@ -289,10 +289,10 @@ fn iteration_limit_is_reported_not_hidden() {
         );
     }
     // A tolerance of 0 can never be met.
-    let options = FitOptions {
+    let options = RatingFitOptions {
         gradient_tol: 0.0,
         max_iter: 30,
-        ..FitOptions::default()
+        ..RatingFitOptions::default()
     };
     let f = fit(&table, &options).unwrap();
     assert_ne!(f.status, FitStatus::Converged);
@@ -301,7 +301,7 @@ fn iteration_limit_is_reported_not_hidden() {
 #[test]
 fn covariance_layout() {
     let table = RatingTable::new(&[7.0, 11.0, 9.0, 3.0], &[2.0, 5.0, 12.0, 11.0]).unwrap();
-    let free = fit(&table, &FitOptions::default()).unwrap();
+    let free = fit(&table, &RatingFitOptions::default()).unwrap();
     let cov = free.covariance().unwrap();
     assert_eq!(cov.dim(), 5);
     assert_eq!(cov.get(Param::Sigma, Param::Sigma), cov.entry(1, 1));

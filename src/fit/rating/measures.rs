@@ -141,7 +141,7 @@ pub fn measures(fit: &RatingFit, boundary: usize) -> Result<RatingMeasures, Meas
 
 #[cfg(test)]
 mod tests {
-    use super::super::{FitOptions, RatingTable, fit};
+    use super::super::{RatingFitOptions, RatingTable, fit};
     use super::*;
 
     fn table() -> RatingTable {
@@ -165,7 +165,7 @@ mod tests {
     // (d_a of Simpson & Fitter 1973, A_z = Φ(d_a/√2)).
     #[test]
     fn standard_errors_follow_the_delta_method() {
-        let f = fit(&table(), &FitOptions::default()).unwrap();
+        let f = fit(&table(), &RatingFitOptions::default()).unwrap();
         let cov = f.covariance().unwrap();
         for b in 1..=4 {
             let m = measures(&f, b).unwrap();
@@ -225,9 +225,9 @@ mod tests {
 
     #[test]
     fn fixed_sigma_has_no_sigma_uncertainty() {
-        let options = FitOptions {
+        let options = RatingFitOptions {
             fix_sigma: true,
-            ..FitOptions::default()
+            ..RatingFitOptions::default()
         };
         let m = measures(&fit(&table(), &options).unwrap(), 2).unwrap();
         assert_eq!((m.sigma.value, m.sigma.se), (1.0, 0.0));
@@ -241,7 +241,7 @@ mod tests {
 
     #[test]
     fn boundary_must_be_a_criterion() {
-        let f = fit(&table(), &FitOptions::default()).unwrap();
+        let f = fit(&table(), &RatingFitOptions::default()).unwrap();
         assert_eq!(
             measures(&f, 0),
             Err(MeasureError::BoundaryOutOfRange {

@@ -38,7 +38,7 @@ pub mod table;
 
 pub use crate::cells::degeneracy::Degeneracy;
 pub use empty_cells::{CorrectionError, apply_correction, degeneracy};
-pub use fit::{Covariance, FitError, FitOptions, FitStatus, Param, RatingFit, fit, fit_from};
+pub use fit::{Covariance, FitError, FitStatus, Param, RatingFit, RatingFitOptions, fit, fit_from};
 pub use measures::{Estimate, MeasureError, RatingMeasures, measures};
 pub use params::{ParamsError, RatingParams};
 pub use table::{RatingTable, Row, TableError};

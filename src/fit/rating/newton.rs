@@ -13,7 +13,7 @@
 //! the counts: it means the same with 20 trials as with a million. The solver never prints;
 //! it returns its stop reason and iteration count.
 
-use super::fit::{FitOptions, FitStatus};
+use super::fit::{FitStatus, RatingFitOptions};
 use super::likelihood::{Evaluation, evaluate_into};
 use super::linalg::{cholesky_in_place, solve_in_place};
 use super::params::{Layout, RatingParams};
@@ -51,7 +51,11 @@ pub(crate) struct Outcome {
 ///
 /// All buffers live on the stack and are reused: two evaluations (current and trial, swapped
 /// by index), the θ gradient and Hessian, and one work matrix for the factorisation.
-pub(crate) fn maximise(table: &RatingTable, start: &RatingParams, options: &FitOptions) -> Outcome {
+pub(crate) fn maximise(
+    table: &RatingTable,
+    start: &RatingParams,
+    options: &RatingFitOptions,
+) -> Outcome {
     let layout = Layout {
         categories: table.categories(),
         fix_sigma: options.fix_sigma,

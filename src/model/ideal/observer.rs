@@ -8,7 +8,7 @@ use serde::Serialize;
 
 /// The four response rates of an equal-variance observer at criterion c.
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub(crate) struct Rates {
+pub(crate) struct OutcomeRates {
     pub hit: f64,
     pub miss: f64,
     pub false_alarm: f64,
@@ -17,10 +17,10 @@ pub(crate) struct Rates {
 
 /// H = Φ(d′/2 − c), F = Φ(−d′/2 − c); miss = 1 − H and CR = 1 − F are taken from the
 /// upper tail so they keep full precision when H or F is near 1.
-pub(crate) fn rates_at(d_prime: f64, criterion: f64) -> Rates {
+pub(crate) fn rates_at(d_prime: f64, criterion: f64) -> OutcomeRates {
     let upper = 0.5 * d_prime - criterion;
     let lower = -0.5 * d_prime - criterion;
-    Rates {
+    OutcomeRates {
         hit: normal::cdf(upper),
         miss: normal::sf(upper),
         false_alarm: normal::cdf(lower),
@@ -30,7 +30,7 @@ pub(crate) fn rates_at(d_prime: f64, criterion: f64) -> Rates {
 
 /// Expected ratio of false alarms to misses, (1 − p)·F / (p·(1 − H)); `None` when the
 /// expected number of misses is 0 in floating point (the ratio is then unbounded).
-pub(crate) fn false_alarm_to_miss(presence_rate: f64, rates: &Rates) -> Option<f64> {
+pub(crate) fn false_alarm_to_miss(presence_rate: f64, rates: &OutcomeRates) -> Option<f64> {
     let ratio = (1.0 - presence_rate) * rates.false_alarm / (presence_rate * rates.miss);
     ratio.is_finite().then_some(ratio)
 }
@@ -112,7 +112,7 @@ impl IdealObserver {
         }
     }
 
-    /// Rates, false-alarm-to-miss ratio and expected payoff at any finite criterion.
+    /// OutcomeRates, false-alarm-to-miss ratio and expected payoff at any finite criterion.
     pub fn outcome(&self, criterion: f64) -> Result<PayoffOutcome, IdealError> {
         if criterion.is_finite() {
             Ok(self.outcome_at(criterion))

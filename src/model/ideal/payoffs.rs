@@ -5,7 +5,7 @@
 //! V_CR + C_FA matter for the optimal criterion, so each must be > 0.
 
 use super::IdealError;
-use super::observer::Rates;
+use super::observer::OutcomeRates;
 use serde::Serialize;
 
 /// Value of a hit, cost of a miss, value of a correct rejection and cost of a false
@@ -85,7 +85,7 @@ impl Payoffs {
     /// p·(H·V_H − (1 − H)·C_M) + (1 − p)·((1 − F)·V_CR − F·C_FA).
     /// Uses the miss and correct-rejection rates as given, so tail values keep their
     /// precision.
-    pub(crate) fn expected(&self, p: f64, r: &Rates) -> f64 {
+    pub(crate) fn expected(&self, p: f64, r: &OutcomeRates) -> f64 {
         p * (r.hit * self.value_hit - r.miss * self.cost_miss)
             + (1.0 - p)
                 * (r.correct_rejection * self.value_correct_rejection
