@@ -57,6 +57,7 @@ pub mod fit;
 pub mod groups;
 pub mod infer;
 pub mod model;
+pub mod output;
 pub mod plan;
 pub mod power;
 pub mod progress;

@@ -86,6 +86,9 @@ enum Command {
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
+    if let Err(e) = vigil::output::cleanup_on_signals() {
+        eprintln!("warning: no signal handler ({e}); an interrupt may leave temporary files");
+    }
     let result = match cli.command {
         Command::Ideal {
             d_prime,

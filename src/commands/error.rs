@@ -2,7 +2,6 @@
 
 use crate::evaluate::RunError;
 use crate::plan::PlanError;
-use std::path::PathBuf;
 use thiserror::Error;
 
 /// Any failure of a command, with its exit code.
@@ -12,13 +11,9 @@ pub enum AppError {
     Plan(#[from] PlanError),
     #[error("{0}")]
     Run(#[from] RunError),
-    #[error(
-        "{path}: cannot write output: {source}\n  allowed: a file path in an existing, writable folder"
-    )]
-    Output {
-        path: PathBuf,
-        source: std::io::Error,
-    },
+    /// An output path refused before the work (exit 2) or a write failure after it (exit 1).
+    #[error("{0}")]
+    Output(#[from] crate::output::OutputError),
     /// A bad command-line value, already worded with the option and what is allowed.
     #[error("{0}")]
     Input(String),
@@ -32,12 +27,9 @@ impl AppError {
     /// The documented exit code of this failure.
     pub fn exit_code(&self) -> i32 {
         match self {
-            Self::Plan(_)
-            | Self::Run(_)
-            | Self::Output { .. }
-            | Self::Input(_)
-            | Self::Groups(_) => 2,
-            Self::Internal(_) => 1,
+            Self::Plan(_) | Self::Run(_) | Self::Input(_) | Self::Groups(_) => 2,
+            Self::Output(e) if e.is_bad_input() => 2,
+            Self::Output(_) | Self::Internal(_) => 1,
         }
     }
 }

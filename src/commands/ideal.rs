@@ -11,9 +11,10 @@
 
 use super::AppError;
 use crate::model::ideal::{IdealError, IdealObserver, Payoffs, log_spaced, scan_payoff_ratios};
+use crate::output::CommitSet;
+use crate::report;
 use crate::report::ideal_text::{IdealFigures, PartialAdjustment, PayoffScan};
-use crate::report::{self, PendingFile};
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 /// Largest number of payoff ratios `--scan` accepts (a readable table, not a data dump).
 pub const MAX_SCAN_POINTS: usize = 1000;
@@ -186,13 +187,6 @@ fn validate(req: &IdealRequest) -> Result<Validated, AppError> {
     })
 }
 
-fn claim(path: &Path) -> Result<PendingFile, AppError> {
-    PendingFile::claim(path).map_err(|source| AppError::Output {
-        path: path.to_path_buf(),
-        source,
-    })
-}
-
 /// The figures for a validated request: the optimum, the partially adjusted criterion and
 /// the scan rows.
 fn compute(
@@ -235,17 +229,24 @@ pub fn ideal(req: &IdealRequest) -> Result<String, AppError> {
         fraction,
         grid,
     } = validate(req)?;
-    let json = req.json.as_deref().map(claim).transpose()?;
+    let mut outputs = CommitSet::new();
+    let json = req
+        .json
+        .as_deref()
+        .map(|p| outputs.claim("--json", p))
+        .transpose()?;
     let figures = compute(observer, fraction, grid.as_deref())
         .map_err(|e| AppError::Internal(e.to_string()))?;
-    if let Some(file) = json {
+    if let Some(slot) = json {
         let bytes = report::ideal_text::render_json(&figures)
             .map_err(|e| AppError::Internal(e.to_string()))?;
-        let path = file.target().to_path_buf();
-        file.commit(&bytes)
-            .map_err(|source| AppError::Output { path, source })?;
+        outputs.write(slot, &bytes)?;
     }
-    Ok(report::ideal_text::render(&figures))
+    // An output named `-` takes standard output in place of the terminal report.
+    match outputs.commit()? {
+        Some(bytes) => Ok(String::from_utf8_lossy(&bytes).into_owned()),
+        None => Ok(report::ideal_text::render(&figures)),
+    }
 }
 
 #[cfg(test)]

@@ -1,7 +1,7 @@
 //! Reports: pure functions from summaries to text or bytes, one format per file.
 //!
 //! Nothing here computes statistics; it formats what the engine summarised. Output files
-//! are written whole or not at all (see [`output_file`]).
+//! are written whole or not at all by [`crate::output`].
 
 pub mod check_text;
 pub mod comparison;
@@ -13,13 +13,13 @@ pub mod ideal_scan_text;
 pub mod ideal_text;
 pub mod identification_text;
 pub mod json_out;
-pub mod output_file;
 pub mod reading;
 pub mod style;
 pub mod terminal;
 pub mod verdict;
 
-pub use output_file::PendingFile;
+/// Kept for callers of the single-file interface; see [`crate::output`].
+pub use crate::output::PendingFile;
 
 /// The caution every report carries: results rest on assumptions; animal numbers are
 /// decided with the local animal-welfare body.
