@@ -32,8 +32,10 @@ pub fn render(plan: &Plan, scans: &[DesignScan]) -> String {
     let _ = writeln!(out, "vigil explore — {}", plan.study().title);
     let _ = writeln!(
         out,
-        "Hypothesised observer: d′ = {:.2}, c = {:+.2}, σ = {}. Expected (Fisher) information at these values, lapses off; no simulation.",
-        o.d_prime, o.criterion, o.sigma
+        "Hypothesised observer: d′ = {}, c = {}, σ = {}. Expected (Fisher) information at these values, lapses off; no simulation.",
+        super::format::number(o.d_prime, 2),
+        super::format::signed(o.criterion, 2),
+        super::format::plain(o.sigma)
     );
     let _ = writeln!(
         out,

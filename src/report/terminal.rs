@@ -2,7 +2,7 @@
 //! and a one-line reading.
 
 use super::CAUTION;
-use super::format::{figure, number, percent, share};
+use super::format::{figure, number, percent, plain, share, signed};
 use super::reading::reading;
 use super::style::{new_table, right_align};
 use crate::design::{Design, Response};
@@ -66,8 +66,12 @@ fn header(out: &mut String, plan: &Plan, summaries: &[ScenarioSummary]) {
     let _ = writeln!(out, "vigil — {}", plan.study().title);
     let _ = writeln!(
         out,
-        "Hypothesised observer: d′ = {:.2}, c = {:+.2} ({lean}), σ = {}; yes/no rates H = {:.3}, F = {:.3}",
-        o.d_prime, o.criterion, o.sigma, r.hit, r.false_alarm
+        "Hypothesised observer: d′ = {}, c = {} ({lean}), σ = {}; yes/no rates H = {}, F = {}",
+        number(o.d_prime, 2),
+        signed(o.criterion, 2),
+        plain(o.sigma),
+        number(r.hit, 3),
+        number(r.false_alarm, 3)
     );
     let exact = summaries.iter().any(|s| s.method == Method::Exact);
     let how = if exact {
