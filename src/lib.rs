@@ -65,6 +65,7 @@ pub mod report;
 pub mod search;
 pub mod simulate;
 pub mod vocab;
+pub mod workload;
 
 pub use plan::{Plan, PlanError};
 

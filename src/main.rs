@@ -39,6 +39,9 @@ enum Command {
         /// No progress bar.
         #[arg(long, short)]
         quiet: bool,
+        /// Run even when the work is estimated above the limit (20 minutes on this machine).
+        #[arg(long)]
+        allow_long_run: bool,
     },
     /// Expected information over a fine grid of trial counts: asymptotic SEs, the d′–c
     /// correlation and whether each design can tell bias from sensitivity, without simulating.
@@ -126,6 +129,7 @@ fn main() -> ExitCode {
             exact,
             experiments,
             quiet,
+            allow_long_run,
         } => run(
             RunRequest {
                 plan,
@@ -133,6 +137,7 @@ fn main() -> ExitCode {
                 json,
                 exact,
                 experiments,
+                allow_long_run,
             },
             quiet,
         ),
@@ -151,6 +156,9 @@ fn main() -> ExitCode {
 
 fn run(req: RunRequest, quiet: bool) -> Result<String, AppError> {
     let prepared = app::prepare(&req)?;
+    if let Some(note) = prepared.note() {
+        eprintln!("{note}");
+    }
     let bar = vigil::progress::bar(prepared.total_replicates(), quiet);
     let text = app::execute(prepared, &|n| bar.inc(n));
     bar.finish_and_clear();

@@ -7,6 +7,7 @@ use crate::evaluate::{self, RunOptions};
 use crate::output::{CommitSet, Slot};
 use crate::plan::Plan;
 use crate::report;
+use crate::workload::Workload;
 use std::path::PathBuf;
 
 /// Options of `vigil run`.
@@ -18,12 +19,16 @@ pub struct RunRequest {
     pub exact: bool,
     /// Overrides the plan's number of experiments (quick looks, tests).
     pub experiments: Option<u64>,
+    /// Run even when the estimated work exceeds [`crate::workload::LIMIT_SECONDS`].
+    pub allow_long_run: bool,
 }
 
 /// A loaded plan with its claimed output files, ready to run.
 pub struct PreparedRun {
     pub plan: Plan,
     pub options: RunOptions,
+    /// The estimated work (timed when large).
+    pub workload: Workload,
     outputs: Outputs,
 }
 
@@ -35,6 +40,13 @@ struct Outputs {
 }
 
 impl PreparedRun {
+    /// What to tell the user before a long run starts, if anything.
+    pub fn note(&self) -> Option<String> {
+        self.workload
+            .worth_noting()
+            .then(|| report::workload_text::note(&self.workload))
+    }
+
     /// Replicates the run will simulate (for a progress bar).
     pub fn total_replicates(&self) -> u64 {
         let groups = if !self.options.exact && self.plan.animals().is_some() {
@@ -66,9 +78,14 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
         .as_ref()
         .map(|p| set.claim("--json", p))
         .transpose()?;
+    let workload = crate::workload::estimate(&plan, options);
+    if workload.over_limit() && !req.allow_long_run {
+        return Err(AppError::Input(report::workload_text::refusal(&workload)));
+    }
     Ok(PreparedRun {
         plan,
         options,
+        workload,
         outputs: Outputs { set, csv, json },
     })
 }

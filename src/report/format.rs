@@ -45,6 +45,18 @@ pub fn plain(x: f64) -> String {
     }
 }
 
+/// An amount such as a cost, to the unit ("5750", "20000000"); beyond 1e12, four
+/// significant digits in scientific notation.
+pub fn whole(x: f64) -> String {
+    if !x.is_finite() {
+        UNDEFINED.into()
+    } else if x.abs() < 1e12 {
+        format!("{x:.0}")
+    } else {
+        significant(x, 4)
+    }
+}
+
 /// `x` with a sign and `digits` decimals ("+0.30"), as [`number`] otherwise.
 pub fn signed(x: f64, digits: usize) -> String {
     if x.is_finite() && x.abs() < SCIENTIFIC_FROM {
@@ -142,6 +154,8 @@ mod tests {
         assert_eq!(plain(1e-300), "1e-300");
         assert_eq!(plain(1e308), "1e308");
         assert_eq!(plain(0.25), "0.25");
+        assert_eq!(whole(2e7), "20000000");
+        assert_eq!(whole(3e300), "3.000e300");
         assert_eq!(plain(4800.0), "4800");
         assert_eq!(significant(123456789.0, 3), "1.23e8");
         assert_eq!(significant(0.012345, 3), "0.0123");

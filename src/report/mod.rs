@@ -17,6 +17,7 @@ pub mod reading;
 pub mod style;
 pub mod terminal;
 pub mod verdict;
+pub mod workload_text;
 
 /// Kept for callers of the single-file interface; see [`crate::output`].
 pub use crate::output::PendingFile;

@@ -5,7 +5,7 @@
 use super::power;
 use crate::groups::effort::{Allocation, Shortfall};
 use crate::groups::{DesignGroups, EffortSplit, GroupReport};
-use crate::report::format::{number, plain};
+use crate::report::format::{plain, whole};
 use crate::report::style::{new_table, right_align};
 use std::fmt::Write;
 
@@ -90,7 +90,7 @@ fn frontier_table(
             } else {
                 a.animals.to_string()
             },
-            number(a.cost, 0),
+            whole(a.cost),
         ];
         for (p, s) in a.approx_power.iter().zip(&a.power) {
             row.push(format!("{p:.2}"));
@@ -192,7 +192,7 @@ pub(super) fn effort_block(out: &mut String, r: &GroupReport, d: &DesignGroups, 
             plain(total),
             a.animals,
             a.trials_per_animal,
-            number(a.cost, 0),
+            whole(a.cost),
             a.weakest().map_or("–".into(), |s| power(&s)),
         );
     }
@@ -224,7 +224,7 @@ pub(super) fn effort_block(out: &mut String, r: &GroupReport, d: &DesignGroups, 
             targets.join(" and "),
             animals_text(a),
             a.trials_per_animal,
-            number(a.cost, 0),
+            whole(a.cost),
             outcome(a),
             fewer_text(e, a),
         );
@@ -240,7 +240,7 @@ pub(super) fn effort_block(out: &mut String, r: &GroupReport, d: &DesignGroups, 
             "Reading: the fewest animals meeting the same targets at any trial count simulated: {} animals × {} trials each (cost {}), simulated {}{}.",
             animals_text(f),
             f.trials_per_animal,
-            number(f.cost, 0),
+            whole(f.cost),
             outcome(f),
             fewer_text(e, f),
         );
