@@ -350,6 +350,14 @@ fn check_keeps_its_promise(text: &str) -> Result<bool, TestCaseError> {
     let value: serde_json::Value = serde_json::from_str(&json)
         .map_err(|e| TestCaseError::fail(format!("JSON does not parse: {e}")))?;
     prop_assert!(only_finite_numbers(&value), "non-finite number in the JSON");
+    // The terminal report never spells NaN or inf (defect 7 of issue 11).
+    let report = std::fs::read_to_string(dir.path().join("stdout.txt")).unwrap_or_default();
+    let bad = ["NaN", "inf ", "inf)", "inf,", "-inf", "+inf"];
+    prop_assert!(
+        !bad.iter().any(|b| report.contains(b)),
+        "NaN or inf in the report:\n{}",
+        report
+    );
     Ok(true)
 }
 
