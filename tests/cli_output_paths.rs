@@ -270,3 +270,29 @@ fn an_interrupt_at_any_moment_leaves_only_whole_outputs() {
         "no run was interrupted: the run is too short for the test"
     );
 }
+
+#[test]
+fn explore_and_ideal_follow_the_same_rules() {
+    let dir = setup();
+    let out = vigil(dir.path(), &["explore", "plan.toml", "--json", "plan.toml"]);
+    assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
+    assert!(stderr(&out).contains("the plan"), "{}", stderr(&out));
+    let out = vigil(
+        dir.path(),
+        &[
+            "ideal",
+            "--d-prime",
+            "1",
+            "--presence",
+            "0.5",
+            "--payoffs",
+            "1,1,1,1",
+            "--json",
+            "-",
+        ],
+    );
+    assert!(out.status.success(), "{}", stderr(&out));
+    let json: serde_json::Value = serde_json::from_str(&stdout(&out)).expect("stdout is JSON");
+    assert_eq!(json["tool"], "vigil");
+    assert_eq!(names(dir.path()), ["plan.toml"]);
+}
