@@ -163,8 +163,8 @@ pub fn scenario_kernel(plan: &Plan, scenario: &Scenario) -> Result<ScenarioKerne
     })
 }
 
-/// Simulates (or enumerates) one scenario.
-fn simulate_scenario(
+/// Simulates (or enumerates) one scenario (no expected information beside it).
+pub fn simulate_scenario(
     plan: &Plan,
     scenario: &Scenario,
     options: RunOptions,

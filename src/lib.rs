@@ -74,6 +74,7 @@ pub mod infer;
 #[doc(hidden)]
 pub mod model;
 #[doc(hidden)]
+pub mod output;
 pub mod plan;
 #[doc(hidden)]
 pub mod power;
@@ -88,6 +89,7 @@ pub mod simulate;
 #[doc(hidden)]
 pub mod spacing;
 pub mod vocab;
+pub mod workload;
 
 pub use analytic::information::{InformationError, ScenarioInformation};
 pub use cells::verdict::Verdict;

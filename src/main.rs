@@ -39,6 +39,9 @@ enum Command {
         /// No progress bar.
         #[arg(long, short)]
         quiet: bool,
+        /// Run even when the work is estimated above the limit (20 minutes on this machine).
+        #[arg(long)]
+        allow_long_run: bool,
     },
     /// Run a plan and write a report folder: an HTML page with the figures, the same as
     /// Markdown, a justification text, the figures as SVG, CSV and JSON.
@@ -101,6 +104,9 @@ enum Command {
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
+    if let Err(e) = vigil::output::cleanup_on_signals() {
+        eprintln!("warning: no signal handler ({e}); an interrupt may leave temporary files");
+    }
     let result = match cli.command {
         Command::Ideal {
             d_prime,
@@ -151,6 +157,7 @@ fn main() -> ExitCode {
             exact,
             experiments,
             quiet,
+            allow_long_run,
         } => run(
             RunRequest {
                 plan,
@@ -158,6 +165,7 @@ fn main() -> ExitCode {
                 json,
                 exact,
                 experiments,
+                allow_long_run,
             },
             quiet,
         ),
@@ -176,6 +184,9 @@ fn main() -> ExitCode {
 
 fn run(req: RunRequest, quiet: bool) -> Result<String, AppError> {
     let prepared = app::prepare(&req)?;
+    if let Some(note) = prepared.note() {
+        eprintln!("{note}");
+    }
     let bar = vigil::progress::bar(prepared.total_replicates(), quiet);
     let text = app::execute(prepared, &|n| bar.inc(n));
     bar.finish_and_clear();

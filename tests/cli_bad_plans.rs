@@ -126,7 +126,7 @@ fn unwritable_output_fails_before_simulating() {
     );
     assert_eq!(out.status.code(), Some(2));
     assert!(
-        stderr(&out).contains("cannot write output"),
+        stderr(&out).contains("the folder no/such/folder does not exist"),
         "{}",
         stderr(&out)
     );

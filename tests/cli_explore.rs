@@ -116,7 +116,7 @@ fn bad_grid_options_exit_2_with_a_clear_message() {
         (vec!["--from", "many"], "invalid value 'many'"),
         (
             vec!["--json", "/nonexistent-vigil-dir/x.json"],
-            "cannot write output",
+            "does not exist",
         ),
     ] {
         let mut all = vec!["explore", plan];

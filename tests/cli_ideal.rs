@@ -378,5 +378,5 @@ fn unwritable_json_path_exits_2() {
     ];
     let out = vigil(dir.path(), &args);
     assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
-    assert!(stderr(&out).contains("cannot write output"));
+    assert!(stderr(&out).contains("the folder no-such-folder does not exist"));
 }

@@ -6,8 +6,9 @@
 //! Bounded: a fixed seed and a fixed number of cases (override with PROPTEST_CASES and
 //! VIGIL_MUTATION_SEED, a number 0–255, to search further), each one or two short runs of
 //! the binary. Counts that scale the work (trials, animals,
-//! budgets) get small or out-of-range extremes only: bounding the work of huge but valid
-//! plans is a separate concern from whether `check` keeps its promise.
+//! budgets) get small, out-of-range or budget-sized extremes (a total of 1e308); a run that
+//! the work limit refuses (exit 2 naming `--allow-long-run`, before any work) keeps the
+//! promise too, since `check` cannot know this machine's speed.
 
 mod common;
 
@@ -74,7 +75,7 @@ const SIZE_KEYS: [&str; 9] = [
     "cost_per_animal",
     "cost_per_trial",
 ];
-const SIZE_EXTREMES: [&str; 10] = [
+const SIZE_EXTREMES: [&str; 11] = [
     "0",
     "1",
     "2",
@@ -85,6 +86,7 @@ const SIZE_EXTREMES: [&str; 10] = [
     "9223372036854775807",
     "2.5",
     "1e17",
+    "1e308",
 ];
 
 /// Lines (or small tables) a plan author might add anywhere: they reach the rules that
@@ -338,12 +340,24 @@ fn check_keeps_its_promise(text: &str) -> Result<bool, TestCaseError> {
     ];
     let (code, msg) = run_vigil(dir.path(), &args)?;
     prop_assert!(!msg.contains("panicked"), "run panicked: {msg}");
+    if code == Some(2) && msg.contains("--allow-long-run") {
+        prop_assert!(!dir.path().join("out.json").exists(), "refused but wrote");
+        return Ok(false);
+    }
     prop_assert_eq!(code, Some(0), "check passed but run failed: {}", msg);
     let json = std::fs::read_to_string(dir.path().join("out.json"))
         .map_err(|e| TestCaseError::fail(format!("no JSON written: {e}")))?;
     let value: serde_json::Value = serde_json::from_str(&json)
         .map_err(|e| TestCaseError::fail(format!("JSON does not parse: {e}")))?;
     prop_assert!(only_finite_numbers(&value), "non-finite number in the JSON");
+    // The terminal report never spells NaN or inf (defect 7 of issue 11).
+    let report = std::fs::read_to_string(dir.path().join("stdout.txt")).unwrap_or_default();
+    let bad = ["NaN", "inf ", "inf)", "inf,", "-inf", "+inf"];
+    prop_assert!(
+        !bad.iter().any(|b| report.contains(b)),
+        "NaN or inf in the report:\n{}",
+        report
+    );
     Ok(true)
 }
 

@@ -2,7 +2,6 @@
 
 use crate::evaluate::RunError;
 use crate::plan::PlanError;
-use std::path::PathBuf;
 use thiserror::Error;
 
 /// Any failure of a command, with its exit code.
@@ -12,18 +11,14 @@ pub enum AppError {
     Plan(#[from] PlanError),
     #[error("{0}")]
     Run(#[from] RunError),
-    #[error(
-        "{path}: cannot write output: {source}\n  allowed: a file path in an existing, writable folder"
-    )]
-    Output {
-        path: PathBuf,
-        source: std::io::Error,
-    },
+    /// An output path refused before the work (exit 2) or a write failure after it (exit 1).
+    #[error("{0}")]
+    Output(#[from] crate::output::OutputError),
     #[error(
         "{path}: cannot write the report folder: {source}\n  allowed: a new folder, or one an earlier `vigil report` wrote, inside an existing, writable folder"
     )]
     OutputFolder {
-        path: PathBuf,
+        path: std::path::PathBuf,
         source: std::io::Error,
     },
     /// A bad command-line value, already worded with the option and what is allowed.
@@ -41,11 +36,11 @@ impl AppError {
         match self {
             Self::Plan(_)
             | Self::Run(_)
-            | Self::Output { .. }
-            | Self::OutputFolder { .. }
             | Self::Input(_)
-            | Self::Groups(_) => 2,
-            Self::Internal(_) => 1,
+            | Self::Groups(_)
+            | Self::OutputFolder { .. } => 2,
+            Self::Output(e) if e.is_bad_input() => 2,
+            Self::Output(_) | Self::Internal(_) => 1,
         }
     }
 }

@@ -10,9 +10,10 @@ use crate::analytic::information::InformationError;
 use crate::analytic::scan::{ScanOptions, scan_plan};
 use crate::analytic::trial_grid::{DEFAULT_POINTS, MIN_TRIALS};
 use crate::evaluate::RunError;
+use crate::output::CommitSet;
 use crate::plan::{Plan, PlanError};
-use crate::report::{self, PendingFile};
-use std::path::{Path, PathBuf};
+use crate::report;
+use std::path::PathBuf;
 
 /// Largest count `--from`/`--to` accept (far beyond any field study; keeps u32 arithmetic safe).
 pub const MAX_EXPLORE_TRIALS: u32 = 100_000_000;
@@ -82,19 +83,18 @@ pub fn scan_options(req: &ExploreRequest) -> Result<ScanOptions, AppError> {
     })
 }
 
-fn claim(path: &Path) -> Result<PendingFile, AppError> {
-    PendingFile::claim(path).map_err(|source| AppError::Output {
-        path: path.to_path_buf(),
-        source,
-    })
-}
-
 /// Runs `vigil explore`: loads the plan, checks the options, claims the JSON file, scans every
 /// design and returns the terminal report (the JSON file is written whole).
 pub fn explore(req: &ExploreRequest) -> Result<String, AppError> {
     let plan = Plan::load(&req.plan)?;
     let options = scan_options(req)?;
-    let json = req.json.as_deref().map(claim).transpose()?;
+    let mut outputs = CommitSet::new();
+    outputs.input("plan", &req.plan);
+    let json = req
+        .json
+        .as_deref()
+        .map(|p| outputs.claim("--json", p))
+        .transpose()?;
     // A model the plan's values cannot build is bad input (exit 2), as in `vigil run`.
     let scans = scan_plan(&plan, options).map_err(|e| match e {
         InformationError::Model { design, source } => AppError::Run(RunError::Model {
@@ -103,12 +103,14 @@ pub fn explore(req: &ExploreRequest) -> Result<String, AppError> {
         }),
         other => AppError::Internal(other.to_string()),
     })?;
-    if let Some(file) = json {
+    if let Some(slot) = json {
         let bytes = report::explore_text::render_json(&plan, &scans)
             .map_err(|e| AppError::Internal(e.to_string()))?;
-        let path = file.target().to_path_buf();
-        file.commit(&bytes)
-            .map_err(|source| AppError::Output { path, source })?;
+        outputs.write(slot, &bytes)?;
     }
-    Ok(report::explore_text::render(&plan, &scans))
+    // An output named `-` takes standard output in place of the terminal report.
+    match outputs.commit()? {
+        Some(bytes) => Ok(String::from_utf8_lossy(&bytes).into_owned()),
+        None => Ok(report::explore_text::render(&plan, &scans)),
+    }
 }

@@ -11,9 +11,11 @@
 
 use super::AppError;
 use crate::model::ideal::{IdealError, IdealObserver, Payoffs, log_spaced, scan_payoff_ratios};
+use crate::output::CommitSet;
+use crate::report;
+use crate::report::format::plain;
 use crate::report::ideal_text::{IdealFigures, PartialAdjustment, PayoffScan};
-use crate::report::{self, PendingFile};
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 /// Largest number of payoff ratios `--scan` accepts (a readable table, not a data dump).
 pub const MAX_SCAN_POINTS: usize = 1000;
@@ -114,6 +116,36 @@ fn option_of(err: &IdealError) -> (&'static str, String) {
     }
 }
 
+/// The `--payoffs` value as given, each amount spelled shortly.
+fn payoffs_given(req: &IdealRequest) -> String {
+    req.payoffs.map(plain).join(",")
+}
+
+/// Refuses inputs whose optimum overflows floating point: a payoff ratio, β_opt or c_opt
+/// that is not a finite number (amounts near 1e308, or a d′ so small that ln β_opt / d′
+/// overflows) would otherwise be reported as "inf".
+fn finite_optimum(req: &IdealRequest, observer: &IdealObserver) -> Result<(), AppError> {
+    let ratio = observer.payoffs().ratio();
+    let beta = observer.optimal_beta();
+    if !(ratio.is_finite() && ratio > 0.0 && beta.is_finite() && beta > 0.0) {
+        return Err(input_error(
+            "--payoffs",
+            &payoffs_given(req),
+            "the payoff ratio (V_CR + C_FA)/(V_H + C_M) or β_opt overflows floating point",
+            PAYOFFS_ALLOWED,
+        ));
+    }
+    if !observer.optimal_outcome().criterion.is_finite() {
+        return Err(input_error(
+            "--d-prime",
+            &plain(req.d_prime),
+            "c_opt = ln β_opt / d′ overflows floating point at this d′",
+            "a finite number > 0 large enough that ln β_opt / d′ is finite, e.g. 1.5",
+        ));
+    }
+    Ok(())
+}
+
 /// A request whose every value has been checked.
 struct Validated {
     observer: IdealObserver,
@@ -128,16 +160,13 @@ fn validate(req: &IdealRequest) -> Result<Validated, AppError> {
         match err {
             IdealError::Payoff { .. }
             | IdealError::NothingAtStakeWhenPresent
-            | IdealError::NothingAtStakeWhenAbsent => {
-                let [a, b, c, d] = req.payoffs;
-                format!("{a},{b},{c},{d}")
-            }
-            IdealError::PresenceRate(p) => p.to_string(),
-            IdealError::DPrime(d) => d.to_string(),
-            IdealError::Fraction(f) | IdealError::Criterion(f) => f.to_string(),
+            | IdealError::NothingAtStakeWhenAbsent => payoffs_given(req),
+            IdealError::PresenceRate(p) => plain(*p),
+            IdealError::DPrime(d) => plain(*d),
+            IdealError::Fraction(f) | IdealError::Criterion(f) => plain(*f),
             IdealError::Grid { .. } | IdealError::PayoffRatio(_) => req
                 .scan
-                .map(|(l, h, n)| format!("{l}:{h}:{n}"))
+                .map(|(l, h, n)| format!("{}:{}:{n}", plain(l), plain(h)))
                 .unwrap_or_default(),
         }
     };
@@ -153,13 +182,14 @@ fn validate(req: &IdealRequest) -> Result<Validated, AppError> {
         Payoffs::new(v_hit, c_miss, v_cr, c_fa).map_err(wrap)?,
     )
     .map_err(wrap)?;
+    finite_optimum(req, &observer)?;
     if let Some(f) = req.fraction {
         observer.partial_criterion(f).map_err(wrap)?;
     }
     let grid = match req.scan {
         None => None,
         Some((low, high, points)) => {
-            let given = format!("{low}:{high}:{points}");
+            let given = format!("{}:{}:{points}", plain(low), plain(high));
             if !(1..=MAX_SCAN_POINTS).contains(&points) {
                 return Err(input_error(
                     "--scan",
@@ -183,13 +213,6 @@ fn validate(req: &IdealRequest) -> Result<Validated, AppError> {
         observer,
         fraction: req.fraction,
         grid,
-    })
-}
-
-fn claim(path: &Path) -> Result<PendingFile, AppError> {
-    PendingFile::claim(path).map_err(|source| AppError::Output {
-        path: path.to_path_buf(),
-        source,
     })
 }
 
@@ -235,17 +258,24 @@ pub fn ideal(req: &IdealRequest) -> Result<String, AppError> {
         fraction,
         grid,
     } = validate(req)?;
-    let json = req.json.as_deref().map(claim).transpose()?;
+    let mut outputs = CommitSet::new();
+    let json = req
+        .json
+        .as_deref()
+        .map(|p| outputs.claim("--json", p))
+        .transpose()?;
     let figures = compute(observer, fraction, grid.as_deref())
         .map_err(|e| AppError::Internal(e.to_string()))?;
-    if let Some(file) = json {
+    if let Some(slot) = json {
         let bytes = report::ideal_text::render_json(&figures)
             .map_err(|e| AppError::Internal(e.to_string()))?;
-        let path = file.target().to_path_buf();
-        file.commit(&bytes)
-            .map_err(|source| AppError::Output { path, source })?;
+        outputs.write(slot, &bytes)?;
     }
-    Ok(report::ideal_text::render(&figures))
+    // An output named `-` takes standard output in place of the terminal report.
+    match outputs.commit()? {
+        Some(bytes) => Ok(String::from_utf8_lossy(&bytes).into_owned()),
+        None => Ok(report::ideal_text::render(&figures)),
+    }
 }
 
 #[cfg(test)]

@@ -4,8 +4,10 @@
 use super::AppError;
 use crate::engine::ScenarioSummary;
 use crate::evaluate::{self, RunOptions};
+use crate::output::{CommitSet, Slot};
 use crate::plan::Plan;
-use crate::report::{self, PendingFile};
+use crate::report;
+use crate::workload::Workload;
 use std::path::PathBuf;
 
 /// Options of `vigil run`.
@@ -17,17 +19,34 @@ pub struct RunRequest {
     pub exact: bool,
     /// Overrides the plan's number of experiments (quick looks, tests).
     pub experiments: Option<u64>,
+    /// Run even when the estimated work exceeds [`crate::workload::LIMIT_SECONDS`].
+    pub allow_long_run: bool,
 }
 
 /// A loaded plan with its claimed output files, ready to run.
 pub struct PreparedRun {
     pub plan: Plan,
     pub options: RunOptions,
-    csv: Option<PendingFile>,
-    json: Option<PendingFile>,
+    /// The estimated work (timed when large).
+    pub workload: Workload,
+    outputs: Outputs,
+}
+
+/// The claimed output files of a run, committed together.
+struct Outputs {
+    set: CommitSet,
+    csv: Option<Slot>,
+    json: Option<Slot>,
 }
 
 impl PreparedRun {
+    /// What to tell the user before a long run starts, if anything.
+    pub fn note(&self) -> Option<String> {
+        self.workload
+            .worth_noting()
+            .then(|| report::workload_text::note(&self.workload))
+    }
+
     /// Replicates the run will simulate (for a progress bar).
     pub fn total_replicates(&self) -> u64 {
         let groups = if !self.options.exact && self.plan.animals().is_some() {
@@ -47,23 +66,27 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
     }
     let options = RunOptions { exact: req.exact };
     evaluate::preflight(&plan, options)?;
-    let claim = |p: &Option<PathBuf>| -> Result<Option<PendingFile>, AppError> {
-        p.as_ref()
-            .map(|path| {
-                PendingFile::claim(path).map_err(|source| AppError::Output {
-                    path: path.clone(),
-                    source,
-                })
-            })
-            .transpose()
-    };
-    let csv = claim(&req.csv)?;
-    let json = claim(&req.json)?;
+    let mut set = CommitSet::new();
+    set.input("plan", &req.plan);
+    let csv = req
+        .csv
+        .as_ref()
+        .map(|p| set.claim("--csv", p))
+        .transpose()?;
+    let json = req
+        .json
+        .as_ref()
+        .map(|p| set.claim("--json", p))
+        .transpose()?;
+    let workload = crate::workload::estimate(&plan, options);
+    if workload.over_limit() && !req.allow_long_run {
+        return Err(AppError::Input(report::workload_text::refusal(&workload)));
+    }
     Ok(PreparedRun {
         plan,
         options,
-        csv,
-        json,
+        workload,
+        outputs: Outputs { set, csv, json },
     })
 }
 
@@ -108,47 +131,37 @@ pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<Stri
         searches,
         groups,
     } = results(plan, run.options, progress)?;
-    write_outputs(
-        plan,
-        &summaries,
-        &searches,
-        groups.as_ref(),
-        run.csv,
-        run.json,
-    )?;
-    let text = report::terminal::render_run(plan, &summaries, &searches, groups.as_ref());
-    Ok(text)
+    let to_stdout = write_outputs(plan, &summaries, &searches, groups.as_ref(), run.outputs)?;
+    // An output named `-` takes standard output in place of the terminal report.
+    match to_stdout {
+        Some(bytes) => Ok(String::from_utf8_lossy(&bytes).into_owned()),
+        None => Ok(report::terminal::render_run(
+            plan,
+            &summaries,
+            &searches,
+            groups.as_ref(),
+        )),
+    }
 }
 
+/// Renders every requested output, writes each to its temporary file, then commits them
+/// together; returns the bytes of an output meant for standard output.
 fn write_outputs(
     plan: &Plan,
     summaries: &[ScenarioSummary],
     searches: &[crate::search::SearchResult],
     groups: Option<&crate::groups::GroupReport>,
-    csv: Option<PendingFile>,
-    json: Option<PendingFile>,
-) -> Result<(), AppError> {
-    // Render both before committing either, so a failure leaves neither half-written.
-    let csv_bytes = match &csv {
-        Some(_) => Some(
-            report::csv_out::render(plan, summaries)
-                .map_err(|e| AppError::Internal(e.to_string()))?,
-        ),
-        None => None,
-    };
-    let json_bytes = match &json {
-        Some(_) => Some(
-            report::json_out::render(plan, summaries, searches, groups)
-                .map_err(|e| AppError::Internal(e.to_string()))?,
-        ),
-        None => None,
-    };
-    for (file, bytes) in [(csv, csv_bytes), (json, json_bytes)] {
-        if let (Some(file), Some(bytes)) = (file, bytes) {
-            let path = file.target().to_path_buf();
-            file.commit(&bytes)
-                .map_err(|source| AppError::Output { path, source })?;
-        }
+    mut outputs: Outputs,
+) -> Result<Option<Vec<u8>>, AppError> {
+    if let Some(slot) = outputs.csv {
+        let bytes = report::csv_out::render(plan, summaries)
+            .map_err(|e| AppError::Internal(e.to_string()))?;
+        outputs.set.write(slot, &bytes)?;
     }
-    Ok(())
+    if let Some(slot) = outputs.json {
+        let bytes = report::json_out::render(plan, summaries, searches, groups)
+            .map_err(|e| AppError::Internal(e.to_string()))?;
+        outputs.set.write(slot, &bytes)?;
+    }
+    Ok(outputs.set.commit()?)
 }

@@ -124,6 +124,26 @@ pub struct EffortSplit {
     pub notes: Vec<String>,
 }
 
+/// Animal datasets the effort split of one design may fit, for the work estimate: the
+/// budget rows at `budget_animals` animals each, the target searches at `target_animals`.
+pub fn max_animal_datasets(setup: &DesignSetup, budget_animals: u64, target_animals: u64) -> u64 {
+    let Some(budget) = *setup.plan.budget() else {
+        return 0;
+    };
+    let g = goals(setup);
+    let experiments = setup.plan.study().experiments;
+    let mut n = 0u64;
+    if budget.total.is_some() && !g.tests.is_empty() {
+        n = n.saturating_add((MAX_ROWS as u64 * experiments).saturating_mul(budget_animals));
+    }
+    if g.has_targets() {
+        n = n.saturating_add(
+            (MAX_ROWS as u64 * MAX_EVALUATIONS * experiments).saturating_mul(target_animals),
+        );
+    }
+    n
+}
+
 /// Replicates the effort split of one design may simulate at most.
 pub fn max_replicates(setup: &DesignSetup) -> u64 {
     let Some(budget) = *setup.plan.budget() else {

@@ -147,6 +147,45 @@ pub fn total_group_replicates(plan: &Plan) -> u64 {
         .sum()
 }
 
+/// Animal datasets (one animal's counts, simulated and fitted) the group part of the plan
+/// may fit, per design: the grid's Σ counts × trial counts × experiments, plus the effort
+/// split's simulated rows — budget rows at the most animals the budget buys at the design's
+/// smallest trial count (at most [`effort_search::MAX_ANIMALS`]), target searches at the
+/// grid's largest count. An estimate for the work limit, not a promise.
+pub fn animal_datasets_by_design(plan: &Plan) -> Vec<u64> {
+    let (Ok(setups), Some(animals)) = (setups(plan), plan.animals().as_ref()) else {
+        return vec![0; plan.designs().len()];
+    };
+    let experiments = plan.study().experiments;
+    let largest = u64::from(animals.counts.iter().copied().max().unwrap_or(0));
+    setups
+        .iter()
+        .map(|s| {
+            let trials = grid_trials(s.design, animals.trial_cap).len() as u64;
+            if trials == 0 {
+                return 0;
+            }
+            let grid: u64 =
+                animals.counts.iter().map(|&n| u64::from(n)).sum::<u64>() * trials * experiments;
+            let budget_animals = match plan.budget() {
+                Some(b) if b.total.is_some() => {
+                    let smallest = s.design.trials[0] * s.design.conditions.len() as u32;
+                    let each = b.cost(1, smallest);
+                    let total = b.total.unwrap_or(0.0);
+                    let n = if each > 0.0 {
+                        total / each
+                    } else {
+                        f64::INFINITY
+                    };
+                    n.min(f64::from(effort_search::MAX_ANIMALS)).max(0.0) as u64
+                }
+                _ => largest,
+            };
+            grid.saturating_add(effort::max_animal_datasets(s, budget_animals, largest))
+        })
+        .collect()
+}
+
 /// Runs the grid of every design and, with a `[budget]`, the effort split; `progress` is told
 /// how many group studies finished.
 pub fn run_groups(plan: &Plan, progress: &(dyn Fn(u64) + Sync)) -> Result<GroupReport, GroupError> {

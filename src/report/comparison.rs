@@ -126,12 +126,22 @@ fn row(summaries: &[ScenarioSummary], y: usize, r: usize, trials: u32) -> Option
 /// "cuts the SE of c by 23% (± 2)" or "raises the SE of c by 5% (± 2)"; ± is the Monte
 /// Carlo SE in percentage points.
 fn change(ratio: Figure, what: &str) -> String {
+    if !ratio.value.is_finite() {
+        return format!(
+            "leaves the change in the SE of {what} unknown (no usable dataset in one of the two designs)"
+        );
+    }
     let pct = (100.0 * (1.0 - ratio.value)).round();
     let pm = (100.0 * ratio.mc_se).round();
-    if pct >= 0.0 {
-        format!("cuts the SE of {what} by {pct:.0}% (± {pm:.0})")
+    let pm = if pm.is_finite() {
+        format!(" (± {pm:.0})")
     } else {
-        format!("raises the SE of {what} by {:.0}% (± {pm:.0})", -pct)
+        String::new()
+    };
+    if pct >= 0.0 {
+        format!("cuts the SE of {what} by {pct:.0}%{pm}")
+    } else {
+        format!("raises the SE of {what} by {:.0}%{pm}", -pct)
     }
 }
 

@@ -32,11 +32,12 @@ pub fn render(plan: &Plan, scans: &[DesignScan]) -> String {
     let _ = writeln!(out, "vigil explore — {}", plan.study().title);
     // Under "optimal" each condition has its own criterion (its row labels say which).
     let criterion = super::conditions_text::optimal_rule_text(plan)
-        .unwrap_or_else(|| format!("c = {:+.2}", o.criterion));
+        .unwrap_or_else(|| format!("c = {}", super::format::signed(o.criterion, 2)));
     let _ = writeln!(
         out,
-        "Hypothesised observer: d′ = {:.2}, {criterion}, σ = {}. Expected (Fisher) information at these values, lapses off; no simulation.",
-        o.d_prime, o.sigma
+        "Hypothesised observer: d′ = {}, {criterion}, σ = {}. Expected (Fisher) information at these values, lapses off; no simulation.",
+        super::format::number(o.d_prime, 2),
+        super::format::plain(o.sigma)
     );
     let _ = writeln!(
         out,

@@ -249,20 +249,51 @@ fn precision_reading(out: &mut String, r: &GroupReport, d: &DesignGroups) {
         return;
     };
     let level = 100.0 * r.confidence;
+    let hw = |x: f64| crate::report::format::number(x, 2);
+    let one = d.cells.len() == 1;
+    let ours = if one {
+        format!(
+            "±{} with {} animals × {} trials each",
+            hw(small.summary.criterion.half_width.value),
+            small.animals,
+            small.trials_per_animal
+        )
+    } else {
+        format!(
+            "±{} with {} animals × {} trials each and ±{} with {} × {}",
+            hw(small.summary.criterion.half_width.value),
+            small.animals,
+            small.trials_per_animal,
+            hw(large.summary.criterion.half_width.value),
+            large.animals,
+            large.trials_per_animal
+        )
+    };
+    let cells: &[_] = if one { &[small] } else { &[small, large] };
+    let claims: Vec<String> = cells
+        .iter()
+        .map(|c| format!("±{}", hw(c.summary.pooled_criterion.half_width.value)))
+        .collect();
+    let covers: Vec<String> = cells
+        .iter()
+        .map(|c| {
+            format!(
+                "{}%",
+                crate::report::format::number(100.0 * c.summary.pooled_criterion.coverage.value, 0)
+            )
+        })
+        .collect();
+    // "only" when the Wilson interval of a coverage lies wholly below the level.
+    let short = cells
+        .iter()
+        .any(|c| c.summary.pooled_criterion.coverage.high < r.confidence);
+    let (link, only) = if short { ("but", "only ") } else { ("and", "") };
     let _ = writeln!(
         out,
-        "Reading: {}: the group mean criterion is pinned to ±{:.2} with {} animals × {} trials each and ±{:.2} with {} × {} ({level:.0}% half-widths); \
-         the pooled fit claims ±{:.2} and ±{:.2}, but its intervals hold the population mean in only {:.0}% and {:.0}% of studies.",
+        "Reading: {}: the group mean criterion is pinned to {ours} ({level:.0}% half-widths); \
+         the pooled fit claims {}, {link} its intervals hold the population mean in {only}{} of studies.",
         d.design,
-        small.summary.criterion.half_width.value,
-        small.animals,
-        small.trials_per_animal,
-        large.summary.criterion.half_width.value,
-        large.animals,
-        large.trials_per_animal,
-        small.summary.pooled_criterion.half_width.value,
-        large.summary.pooled_criterion.half_width.value,
-        100.0 * small.summary.pooled_criterion.coverage.value,
-        100.0 * large.summary.pooled_criterion.coverage.value,
+        claims.join(" and "),
+        covers.join(" and "),
     );
 }

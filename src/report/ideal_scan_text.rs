@@ -90,11 +90,11 @@ pub(super) fn scan_reading(scan: &PayoffScan, own_ratio: f64) -> String {
     let ratios: Vec<Option<f64>> = rows.iter().map(|r| r.false_alarm_to_miss_ratio).collect();
     let mut s = format!(
         "as R rises from {} to {} (absent-trial outcomes weigh more against present-trial ones), c_opt moves \
-         from {:+.2} to {:+.2} and the expected false alarms per miss {}, from {} to {}",
+         from {} to {} and the expected false alarms per miss {}, from {} to {}",
         sig_short(first.payoff_ratio),
         sig_short(last.payoff_ratio),
-        first.optimal_criterion,
-        last.optimal_criterion,
+        super::format::signed(first.optimal_criterion, 2),
+        super::format::signed(last.optimal_criterion, 2),
         direction(&ratios),
         fa_per_miss(first.false_alarm_to_miss_ratio, 3),
         fa_per_miss(last.false_alarm_to_miss_ratio, 3)

@@ -2,7 +2,7 @@
 //! 1966), a partially adjusted criterion beside it, a payoff-ratio scan with one plain
 //! reading; and the same figures as JSON.
 
-use super::format::number;
+use super::format::{number, plain, signed};
 use super::ideal_scan_text::{balance_ratio, scan_reading, scan_table};
 use super::style::{new_table, right_align};
 use crate::model::ideal::{IdealObserver, PayoffOutcome, ScanRow};
@@ -48,22 +48,7 @@ pub struct PayoffScan {
     pub rows: Vec<ScanRow>,
 }
 
-/// `x` to `n` significant digits; scientific notation outside 1e-4 … 1e7; "–" if undefined.
-pub(super) fn sig_n(x: f64, n: usize) -> String {
-    if !x.is_finite() {
-        return "–".into();
-    }
-    if x == 0.0 {
-        return "0".into();
-    }
-    let e = x.abs().log10().floor() as i32;
-    if !(-4..7).contains(&e) {
-        let m = n.saturating_sub(1);
-        return format!("{x:.m$e}");
-    }
-    let decimals = (n as i32 - 1 - e).max(0) as usize;
-    format!("{x:.decimals$}")
-}
+pub(super) use super::format::significant as sig_n;
 
 /// Six significant digits: the figures a user may want to copy.
 fn sig(x: f64) -> String {
@@ -93,13 +78,14 @@ pub fn render(fig: &IdealFigures) -> String {
     );
     let _ = writeln!(
         out,
-        "Inputs: d′ = {}; stimulus present on {} of trials (p = {p}); payoffs V_H = {}, C_M = {}, V_CR = {}, C_FA = {}.",
-        obs.d_prime(),
+        "Inputs: d′ = {}; stimulus present on {} of trials (p = {}); payoffs V_H = {}, C_M = {}, V_CR = {}, C_FA = {}.",
+        plain(obs.d_prime()),
         super::format::percent(p),
-        pay.value_hit(),
-        pay.cost_miss(),
-        pay.value_correct_rejection(),
-        pay.cost_false_alarm()
+        plain(p),
+        plain(pay.value_hit()),
+        plain(pay.cost_miss()),
+        plain(pay.value_correct_rejection()),
+        plain(pay.cost_false_alarm())
     );
     let _ = writeln!(
         out,
@@ -117,7 +103,7 @@ pub fn render(fig: &IdealFigures) -> String {
         let _ = writeln!(
             out,
             "partial adjustment: c = f·c_opt = {} × {} = {}",
-            part.fraction,
+            plain(part.fraction),
             number(fig.optimal.criterion, 6),
             number(part.outcome.criterion, 6)
         );
@@ -204,11 +190,11 @@ fn optimum_reading(fig: &IdealFigures) -> String {
         }
     };
     let mut s = format!(
-        "with these stakes and this presence rate the best criterion is {} (c_opt = {:+.2}): the observer \
+        "with these stakes and this presence rate the best criterion is {} (c_opt = {}): the observer \
          misses {} of present stimuli and raises a false alarm on {} of absent trials — {} false alarms per miss — \
          for an expected payoff of {} per trial.",
         leaning(o.criterion),
-        o.criterion,
+        signed(o.criterion, 2),
         pct(o.miss_rate),
         pct(o.false_alarm_rate),
         fa_per_miss(o.false_alarm_to_miss_ratio, 3),
@@ -217,9 +203,9 @@ fn optimum_reading(fig: &IdealFigures) -> String {
     if let Some(p) = &fig.partial {
         let _ = write!(
             s,
-            " Stopping {} of the way from c = 0 (c = {:+.2}) gives {} false alarms per miss and {} per trial, {} less.",
-            p.fraction,
-            p.outcome.criterion,
+            " Stopping {} of the way from c = 0 (c = {}) gives {} false alarms per miss and {} per trial, {} less.",
+            plain(p.fraction),
+            signed(p.outcome.criterion, 2),
             fa_per_miss(p.outcome.false_alarm_to_miss_ratio, 3),
             number(p.outcome.expected_payoff, 3),
             number(p.payoff_lost, 3)

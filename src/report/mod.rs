@@ -1,7 +1,7 @@
 //! Reports: pure functions from summaries to text or bytes, one format per file.
 //!
 //! Nothing here computes statistics; it formats what the engine summarised. Output files
-//! are written whole or not at all (see [`output_file`]).
+//! are written whole or not at all by [`crate::output`].
 
 pub mod check_text;
 pub mod comparison;
@@ -16,7 +16,6 @@ pub mod ideal_text;
 pub mod identification_text;
 pub mod json_out;
 pub mod justification;
-pub mod output_file;
 pub mod output_folder;
 pub mod page;
 pub mod page_html;
@@ -26,8 +25,10 @@ pub mod report_page;
 pub mod style;
 pub mod terminal;
 pub mod verdict;
+pub mod workload_text;
 
-pub use output_file::PendingFile;
+/// Kept for callers of the single-file interface; see [`crate::output`].
+pub use crate::output::PendingFile;
 pub use output_folder::PendingFolder;
 
 /// The caution every report carries: results rest on assumptions; animal numbers are

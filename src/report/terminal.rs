@@ -5,7 +5,7 @@ use super::CAUTION;
 use super::conditions_text::{
     EXPECTED_NOTE, any_expected, conditions_text, optimal_rule_text, split_text,
 };
-use super::format::{figure, number, percent, share};
+use super::format::{figure, number, percent, plain, share, signed};
 use super::reading::reading;
 use super::style::{new_table, right_align};
 use crate::design::{Design, Response};
@@ -72,15 +72,20 @@ fn header(out: &mut String, plan: &Plan, summaries: &[ScenarioSummary]) {
         Some(rule) => {
             let _ = writeln!(
                 out,
-                "Hypothesised observer: d′ = {:.2}, {rule} (listed with each design), σ = {}",
-                o.d_prime, o.sigma
+                "Hypothesised observer: d′ = {}, {rule} (listed with each design), σ = {}",
+                number(o.d_prime, 2),
+                plain(o.sigma)
             );
         }
         None => {
             let _ = writeln!(
                 out,
-                "Hypothesised observer: d′ = {:.2}, c = {:+.2} ({lean}), σ = {}; yes/no rates H = {:.3}, F = {:.3}",
-                o.d_prime, o.criterion, o.sigma, r.hit, r.false_alarm
+                "Hypothesised observer: d′ = {}, c = {} ({lean}), σ = {}; yes/no rates H = {}, F = {}",
+                number(o.d_prime, 2),
+                signed(o.criterion, 2),
+                plain(o.sigma),
+                number(r.hit, 3),
+                number(r.false_alarm, 3)
             );
         }
     }

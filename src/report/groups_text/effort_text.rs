@@ -5,6 +5,7 @@
 use super::power;
 use crate::groups::effort::{Allocation, Shortfall};
 use crate::groups::{DesignGroups, EffortSplit, GroupReport};
+use crate::report::format::{plain, whole};
 use crate::report::style::{new_table, right_align};
 use std::fmt::Write;
 
@@ -89,7 +90,7 @@ fn frontier_table(
             } else {
                 a.animals.to_string()
             },
-            format!("{:.0}", a.cost),
+            whole(a.cost),
         ];
         for (p, s) in a.approx_power.iter().zip(&a.power) {
             row.push(format!("{p:.2}"));
@@ -124,9 +125,10 @@ pub(super) fn effort_block(out: &mut String, r: &GroupReport, d: &DesignGroups, 
     let _ = writeln!(
         out,
         "Effort split: {} per animal + {} per trial{}; trials{per_cond} searched from {} to {} (≈ = large-sample approximation, then simulated).",
-        b.cost_per_animal,
-        b.cost_per_trial,
-        b.total.map_or(String::new(), |t| format!(", budget {t}")),
+        plain(b.cost_per_animal),
+        plain(b.cost_per_trial),
+        b.total
+            .map_or(String::new(), |t| format!(", budget {}", plain(t))),
         e.trials_range[0],
         e.trials_range[1],
     );
@@ -186,10 +188,11 @@ pub(super) fn effort_block(out: &mut String, r: &GroupReport, d: &DesignGroups, 
         let a = &e.budget_frontier[i];
         let _ = writeln!(
             out,
-            "Reading: with the budget of {total}: {} animals × {} trials each (cost {:.0}) gives power {} for {goals}.",
+            "Reading: with the budget of {}: {} animals × {} trials each (cost {}) gives power {} for {goals}.",
+            plain(total),
             a.animals,
             a.trials_per_animal,
-            a.cost,
+            whole(a.cost),
             a.weakest().map_or("–".into(), |s| power(&s)),
         );
     }
@@ -206,8 +209,8 @@ pub(super) fn effort_block(out: &mut String, r: &GroupReport, d: &DesignGroups, 
             .chain(e.d_prime_half_width.map(|w| format!("±{w} on the mean d′")))
             .collect();
         let within = match b.total {
-            Some(t) if a.cost <= t => format!(", within the budget of {t}"),
-            Some(t) => format!(", over the budget of {t}"),
+            Some(t) if a.cost <= t => format!(", within the budget of {}", plain(t)),
+            Some(t) => format!(", over the budget of {}", plain(t)),
             None => String::new(),
         };
         let also = if e.fewest_animals == Some(i) {
@@ -217,11 +220,11 @@ pub(super) fn effort_block(out: &mut String, r: &GroupReport, d: &DesignGroups, 
         };
         let _ = writeln!(
             out,
-            "Reading: the least cost meeting {}: {} animals × {} trials each (cost {:.0}{within}), simulated {}{}{also}.",
+            "Reading: the least cost meeting {}: {} animals × {} trials each (cost {}{within}), simulated {}{}{also}.",
             targets.join(" and "),
             animals_text(a),
             a.trials_per_animal,
-            a.cost,
+            whole(a.cost),
             outcome(a),
             fewer_text(e, a),
         );
@@ -234,10 +237,10 @@ pub(super) fn effort_block(out: &mut String, r: &GroupReport, d: &DesignGroups, 
     {
         let _ = writeln!(
             out,
-            "Reading: the fewest animals meeting the same targets at any trial count simulated: {} animals × {} trials each (cost {:.0}), simulated {}{}.",
+            "Reading: the fewest animals meeting the same targets at any trial count simulated: {} animals × {} trials each (cost {}), simulated {}{}.",
             animals_text(f),
             f.trials_per_animal,
-            f.cost,
+            whole(f.cost),
             outcome(f),
             fewer_text(e, f),
         );
