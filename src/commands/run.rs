@@ -85,15 +85,17 @@ pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<Stri
         (Some(_), false) => Some(crate::groups::run_groups(plan, progress)?),
         _ => None,
     };
+    let advice = crate::analytic::advice::RunAdvice::of(plan, &summaries);
     write_outputs(
         plan,
         &summaries,
         &searches,
         groups.as_ref(),
+        &advice,
         run.csv,
         run.json,
     )?;
-    let text = report::terminal::render_run(plan, &summaries, &searches, groups.as_ref());
+    let text = report::terminal::render_run(plan, &summaries, &searches, groups.as_ref(), &advice);
     Ok(text)
 }
 
@@ -102,6 +104,7 @@ fn write_outputs(
     summaries: &[ScenarioSummary],
     searches: &[crate::search::SearchResult],
     groups: Option<&crate::groups::GroupReport>,
+    advice: &crate::analytic::advice::RunAdvice,
     csv: Option<PendingFile>,
     json: Option<PendingFile>,
 ) -> Result<(), AppError> {
@@ -115,7 +118,7 @@ fn write_outputs(
     };
     let json_bytes = match &json {
         Some(_) => Some(
-            report::json_out::render(plan, summaries, searches, groups)
+            report::json_out::render(plan, summaries, searches, groups, advice)
                 .map_err(|e| AppError::Internal(e.to_string()))?,
         ),
         None => None,
