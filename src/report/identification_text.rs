@@ -125,6 +125,22 @@ mod tests {
     }
 
     #[test]
+    fn a_range_of_d_prime_stops_at_its_floor() {
+        let r = ProfileRange {
+            parameter: "d′".into(),
+            truth: 1.6,
+            level: 0.95,
+            lower: RangeEnd::Floor { value: 0.0 },
+            upper: RangeEnd::At { value: 1.79 },
+            inner_failures: 0,
+        };
+        assert_eq!(
+            range_sentence(&r),
+            "d′ anywhere from 0.00 (the smallest value allowed) up to 1.79"
+        );
+    }
+
+    #[test]
     fn unbounded_ends_say_so() {
         let r = ProfileRange {
             parameter: "c".into(),
