@@ -230,3 +230,16 @@ fn side_by_side_names_its_spread_sd() {
     assert!(!text.contains("the SE of c"), "{text}");
     assert!(text.contains("SD = spread of the estimates across simulated experiments"));
 }
+
+#[test]
+fn a_small_census_is_advised_a_larger_one() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = stdout(&vigil(
+        dir.path(),
+        &["explore", &bundled("base-rate-shift.toml")],
+    ));
+    let r = reading(&text, "errors + census");
+    // Old: "more trials do not bring it below 0.5; both targets together: never up to 1280".
+    assert!(r.contains("instead of 100 gives |r| = 0.49"), "{r}");
+    assert!(r.contains("a full record"), "{r}");
+}

@@ -39,6 +39,8 @@ pub const PRESENCE_GRID: [f64; 17] = [
 /// More trials are searched up to this multiple of the count judged (at least the plan's
 /// `max_trials`).
 pub const TRIAL_REACH: u32 = 64;
+/// A larger census is tried at 2, 4, … 2^CENSUS_STEPS times the plan's.
+pub const CENSUS_STEPS: u32 = 6;
 /// |r| moving by less than this over the whole trial reach counts as "more trials leave it".
 pub const FLAT_CORR: f64 = 0.02;
 
@@ -204,6 +206,12 @@ pub enum Lever {
     },
     /// Recording each trial's stimulus and response gives this |r| at the same count.
     FullRecord { abs_corr: f64 },
+    /// A census of this many encounters (instead of `from`) gives this |r| at the same count.
+    LargerCensus {
+        from: u64,
+        census: u64,
+        abs_corr: f64,
+    },
     /// Another design of the plan gives this |r| at the same count.
     OtherDesign { design: String, abs_corr: f64 },
 }
@@ -271,6 +279,22 @@ pub fn advise(
             && meets(abs_corr)
         {
             levers.push(Lever::FullRecord { abs_corr });
+        }
+        if let BaseRate::Census(m) = design.base_rate {
+            let larger = (1..=CENSUS_STEPS)
+                .map(|k| m.saturating_mul(1 << k))
+                .find_map(|census| {
+                    let mut d = design.clone();
+                    d.base_rate = BaseRate::Census(census);
+                    r_of(&d).filter(|&r| meets(r)).map(|r| (census, r))
+                });
+            if let Some((census, abs_corr)) = larger {
+                levers.push(Lever::LargerCensus {
+                    from: m,
+                    census,
+                    abs_corr,
+                });
+            }
         }
         let other = plan
             .designs()

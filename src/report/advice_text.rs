@@ -97,6 +97,13 @@ pub fn lever_text(l: &Lever) -> String {
         Lever::FullRecord { abs_corr } => format!(
             "recording each trial's stimulus and response (a full record) gives |r| = {abs_corr:.2} at the same count"
         ),
+        Lever::LargerCensus {
+            from,
+            census,
+            abs_corr,
+        } => format!(
+            "a census of {census} encounters instead of {from} gives |r| = {abs_corr:.2} at the same count"
+        ),
         Lever::OtherDesign { design, abs_corr } => {
             format!("the plan's \"{design}\" gives |r| = {abs_corr:.2} at the same count")
         }
