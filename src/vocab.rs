@@ -69,7 +69,9 @@ impl Quantity {
 }
 
 /// Direction of the alternative hypothesis for a parameter θ against its null value θ₀.
+/// Serialized with the plan's own spelling (`two-sided`, `greater`, `less`).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum Sided {
     /// H₁: θ ≠ θ₀.
     TwoSided,

@@ -228,7 +228,9 @@ fn unknown_base_rate_names_its_null_direction_and_profiles_d_prime() {
         let info = scenario_information(&p, design, n).unwrap();
         let d = &info.profile.as_ref().unwrap()[0];
         assert_eq!(d.parameter, "d′");
-        assert!(matches!(d.lower, RangeEnd::BeyondWindow { .. }), "{d:?}");
+        // Plans require d′ ≥ 0, so the range runs down to 0, never to the search window's
+        // negative edge (it said "down to −8.40" before).
+        assert_eq!(d.lower, RangeEnd::Floor { value: 0.0 }, "{d:?}");
         match d.upper {
             RangeEnd::At { value } => value,
             other => panic!("d′ should be bounded above: {other:?}"),

@@ -38,7 +38,8 @@ fn note_lines(text: &str) -> Vec<&str> {
 fn check_run_flags(name: &str) -> usize {
     let p = plan(name, 300);
     let summaries = run_plan(&p, RunOptions::default(), &|_| {}).unwrap();
-    let text = terminal::render(&p, &summaries);
+    let advice = vigil::analytic::advice::RunAdvice::of(&p, &summaries);
+    let text = terminal::render_run(&p, &summaries, &[], None, &advice);
     let level = p.study().confidence;
     let notes = note_lines(&text);
     let mut flagged = 0;

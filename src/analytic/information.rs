@@ -25,7 +25,7 @@ use crate::cells::likelihood::Counts;
 use crate::cells::newton::{NewtonOptions, Start, fit};
 use crate::cells::observation_model::ObservationModel;
 use crate::cells::profile::{ProfileOptions, ProfileTarget, profile_interval};
-use crate::cells::verdict::{ParameterNames, ProfileRange, Verdict, from_assessment};
+use crate::cells::verdict::{ParameterNames, ProfileRange, RangeEnd, Verdict, from_assessment};
 use crate::design::Design;
 use crate::design::model::condition_specs;
 use crate::design::quantities::{ReportedQuantity, reported_quantities};
@@ -159,6 +159,22 @@ impl DesignInformation {
         })
     }
 
+    /// Number of free parameters.
+    pub fn dim(&self) -> usize {
+        self.model.dim()
+    }
+
+    /// Free cells of the observed table: Σ over blocks of (cells − 1), the degrees of
+    /// freedom a multinomial model of the table can use. A model with as many parameters
+    /// reproduces any table exactly (it is saturated).
+    pub fn free_cells(&self) -> usize {
+        self.model
+            .blocks()
+            .iter()
+            .map(|b| b.cells.len().saturating_sub(1))
+            .sum()
+    }
+
     /// Names of the free parameters as reports show them.
     pub fn parameter_names(&self) -> &ParameterNames {
         &self.names
@@ -283,16 +299,34 @@ impl DesignInformation {
                 .parameters()
                 .index_of(&r.parameter)
                 .map_or(parameter.to_string(), |i| self.names.symbols[i].clone());
+            let mut lower: RangeEnd = r.lower.into();
+            // Plans require d′ ≥ 0: a lower end below 0 (a crossing or the window's edge)
+            // means the data are consistent with every d′ down to 0, the smallest allowed.
+            if parameter == "d′" && range_end_value(lower) < D_PRIME_FLOOR {
+                lower = RangeEnd::Floor {
+                    value: D_PRIME_FLOOR,
+                };
+            }
             out.push(ProfileRange {
                 parameter: symbol,
                 truth,
                 level: r.level,
-                lower: r.lower.into(),
+                lower,
                 upper: r.upper.into(),
                 inner_failures: r.inner_failures,
             });
         }
         Ok(out)
+    }
+}
+
+/// The smallest d′ a plan allows (validation rejects negative d′).
+pub const D_PRIME_FLOOR: f64 = 0.0;
+
+fn range_end_value(end: RangeEnd) -> f64 {
+    match end {
+        RangeEnd::At { value } | RangeEnd::Floor { value } => value,
+        RangeEnd::BeyondWindow { edge } => edge,
     }
 }
 

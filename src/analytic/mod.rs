@@ -1,7 +1,9 @@
-//! Results without random numbers: exact enumeration of small yes/no designs (and, later,
-//! expected Fisher information), from the same tables as the Monte Carlo path.
+//! Results without random numbers: exact enumeration of small yes/no designs, expected
+//! Fisher information, and what it says a reading should advise (`advice`, `scale_fit`).
 
+pub mod advice;
 pub mod exact;
 pub mod information;
+pub mod scale_fit;
 pub mod scan;
 pub mod trial_grid;

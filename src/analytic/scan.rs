@@ -2,8 +2,11 @@
 
 use serde::Serialize;
 
+use super::advice::{Advice, Figures, Yardsticks, advise, shortfalls};
 use super::information::{DesignInformation, InformationError, ScenarioInformation};
+use super::scale_fit::{ScaleFit, scale_fit};
 use super::trial_grid::{DEFAULT_POINTS, design_grid};
+use crate::cells::verdict::Verdict;
 use crate::plan::Plan;
 
 /// Which trial counts to scan; `None` ends default per design (see
@@ -36,6 +39,11 @@ pub struct DesignScan {
     pub parameters: Vec<String>,
     /// One row per trial count, increasing (empty when no count of the range suits the design).
     pub rows: Vec<ScenarioInformation>,
+    /// When the largest count does not tell d′ and c apart (the rule of [`super::advice`]):
+    /// what would.
+    pub advice: Option<Advice>,
+    /// A rating fit with σ free that is saturated or leaves σ barely determined.
+    pub scale_fit: Option<ScaleFit>,
 }
 
 /// Scans every design of `plan`. Profile ranges are computed at every count that does not
@@ -49,11 +57,27 @@ pub fn scan_plan(plan: &Plan, options: ScanOptions) -> Result<Vec<DesignScan>, I
                 .into_iter()
                 .map(|n| info.at(n, true))
                 .collect::<Result<Vec<_>, _>>()?;
+            let y = Yardsticks::of(plan.targets());
+            let advice = match rows.last() {
+                Some(last) if !matches!(last.verdict, Verdict::NotIdentified { .. }) => {
+                    let seen = shortfalls(&y, &Figures::asymptotic(last, plan.study().confidence));
+                    if seen.is_empty() {
+                        None
+                    } else {
+                        Some(advise(plan, design, last.trials, &seen)?)
+                    }
+                }
+                _ => None,
+            };
+            let counts: Vec<u32> = rows.iter().map(|r| r.trials).collect();
+            let scale_fit = scale_fit(plan, design, &counts)?;
             Ok(DesignScan {
                 design: design.name.clone(),
                 record: design.record_label(),
                 parameters: info.parameter_names().symbols.clone(),
                 rows,
+                advice,
+                scale_fit,
             })
         })
         .collect()

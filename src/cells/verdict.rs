@@ -165,6 +165,9 @@ pub enum RangeEnd {
     At { value: f64 },
     /// No crossing up to this edge of the search window: unbounded as far as was searched.
     BeyondWindow { edge: f64 },
+    /// The range reaches the smallest value the parameter can take (d′ ≥ 0 in every plan):
+    /// every value from here up to the other end is consistent with the data.
+    Floor { value: f64 },
 }
 
 impl From<Bound> for RangeEnd {

@@ -92,7 +92,8 @@ pub fn execute(
     let svgs = figures::all(&inputs).map_err(|e| AppError::Internal(e.to_string()))?;
     let internal = |e: &dyn std::fmt::Display| AppError::Internal(e.to_string());
     let csv = report::csv_out::render(plan, &summaries).map_err(|e| internal(&e))?;
-    let json = report::json_out::render(plan, &summaries, &searches, groups.as_ref())
+    let advice = crate::analytic::advice::RunAdvice::of(plan, &summaries);
+    let json = report::json_out::render(plan, &summaries, &searches, groups.as_ref(), &advice)
         .map_err(|e| internal(&e))?;
     let justification = report::justification::paragraphs(plan, &searches, groups.as_ref());
     let others: Files = vec![
@@ -131,6 +132,7 @@ pub fn execute(
         summaries: &summaries,
         searches: &searches,
         groups: groups.as_ref(),
+        advice: &advice,
         figures: &svgs,
         files: &listed,
     });

@@ -131,7 +131,15 @@ pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<Stri
         searches,
         groups,
     } = results(plan, run.options, progress)?;
-    let to_stdout = write_outputs(plan, &summaries, &searches, groups.as_ref(), run.outputs)?;
+    let advice = crate::analytic::advice::RunAdvice::of(plan, &summaries);
+    let to_stdout = write_outputs(
+        plan,
+        &summaries,
+        &searches,
+        groups.as_ref(),
+        &advice,
+        run.outputs,
+    )?;
     // An output named `-` takes standard output in place of the terminal report.
     match to_stdout {
         Some(bytes) => Ok(String::from_utf8_lossy(&bytes).into_owned()),
@@ -140,6 +148,7 @@ pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<Stri
             &summaries,
             &searches,
             groups.as_ref(),
+            &advice,
         )),
     }
 }
@@ -151,6 +160,7 @@ fn write_outputs(
     summaries: &[ScenarioSummary],
     searches: &[crate::search::SearchResult],
     groups: Option<&crate::groups::GroupReport>,
+    advice: &crate::analytic::advice::RunAdvice,
     mut outputs: Outputs,
 ) -> Result<Option<Vec<u8>>, AppError> {
     if let Some(slot) = outputs.csv {
@@ -159,7 +169,7 @@ fn write_outputs(
         outputs.set.write(slot, &bytes)?;
     }
     if let Some(slot) = outputs.json {
-        let bytes = report::json_out::render(plan, summaries, searches, groups)
+        let bytes = report::json_out::render(plan, summaries, searches, groups, advice)
             .map_err(|e| AppError::Internal(e.to_string()))?;
         outputs.set.write(slot, &bytes)?;
     }

@@ -24,9 +24,11 @@ pub struct Observer {
 /// "present" with probability `guess_yes`, so P(yes) = (1 − λ)·P_model(yes) + λ·g.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct LapseSpec {
-    /// λ in [0, 1).
+    /// λ in [0, 1); the plan's `lapse_rate` (and its name in JSON).
+    #[serde(rename = "lapse_rate")]
     pub rate: f64,
-    /// g in [0, 1].
+    /// g in [0, 1]; the plan's `lapse_yes` (and its name in JSON).
+    #[serde(rename = "lapse_yes")]
     pub guess_yes: f64,
 }
 

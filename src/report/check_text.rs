@@ -1,12 +1,26 @@
-//! The `vigil check` report: the plan's title, the observer and study settings, and one row
-//! per scenario.
+//! The `vigil check` report: the plan's title, the observer and study settings, one row per
+//! scenario, and every other section the plan sets (hypotheses, targets, animals, budget), so
+//! a reader sees what `run` will do with it.
 
 use super::conditions_text::{EXPECTED_NOTE, any_expected, optimal_rule_text};
 use super::format::number;
 use crate::design::Counts;
+use crate::design::goals::TestKind;
 use crate::plan::Plan;
+use crate::vocab::Sided;
 use std::fmt::Write;
 use std::path::Path;
+
+/// A number as a plan would write it: at most 3 decimals, trailing zeros dropped
+/// (0.18077062663297522 → 0.181, 1.0 → 1, −0.25 → -0.25).
+pub fn plain(x: f64) -> String {
+    if !x.is_finite() {
+        return "–".into();
+    }
+    let s = format!("{x:.3}");
+    let s = s.trim_end_matches('0').trim_end_matches('.');
+    if s == "-0" { "0".into() } else { s.into() }
+}
 
 /// The text `vigil check` prints for a valid plan.
 pub fn render(path: &Path, plan: &Plan) -> String {
@@ -19,12 +33,20 @@ pub fn render(path: &Path, plan: &Plan) -> String {
     );
     let o = plan.observer();
     // Under "optimal" each condition has its own criterion: the table lists them.
-    let criterion = optimal_rule_text(plan).unwrap_or_else(|| format!("c = {}", o.criterion));
+    let criterion =
+        optimal_rule_text(plan).unwrap_or_else(|| format!("c = {}", plain(o.criterion)));
+    let lapses = o.lapse.map_or(String::new(), |l| {
+        format!(
+            "; lapse_rate = {}, lapse_yes = {}",
+            plain(l.rate),
+            plain(l.guess_yes)
+        )
+    });
     let _ = writeln!(
         out,
-        "observer: d′ = {}, {criterion}, σ = {}; {} experiments per scenario, seed {}, {:.0}% intervals, {} correction",
-        o.d_prime,
-        o.sigma,
+        "observer: d′ = {}, {criterion}, σ = {}{lapses}; {} experiments per scenario, seed {}, {:.0}% intervals, {} correction",
+        plain(o.d_prime),
+        plain(o.sigma),
         plan.study().experiments,
         plan.study().seed,
         100.0 * plan.study().confidence,
@@ -62,7 +84,7 @@ pub fn render(path: &Path, plan: &Plan) -> String {
                 });
             }
             row.extend([
-                format!("{}", c.presence),
+                plain(c.presence),
                 number(c.criterion, 3),
                 first(s.trials.to_string()),
                 format!("{mark}{}", c.present),
@@ -81,5 +103,112 @@ pub fn render(path: &Path, plan: &Plan) -> String {
     if any_expected(scenarios.iter().flat_map(|s| &s.conditions)) {
         let _ = writeln!(out, "{EXPECTED_NOTE}");
     }
+    sections(&mut out, plan);
     out
+}
+
+/// Hypotheses, targets, animals and budget, one line each, when the plan has them.
+fn sections(out: &mut String, plan: &Plan) {
+    for h in plan.hypotheses() {
+        let conditions = if h.conditions.is_empty() {
+            String::new()
+        } else {
+            format!(", conditions {}", h.conditions.join(" vs "))
+        };
+        let power = h
+            .power
+            .map_or(String::new(), |p| format!(", power ≥ {}", plain(p)));
+        let shift = if h.kind == TestKind::GroupDifference {
+            format!(", shift {}", plain(h.shift))
+        } else {
+            String::new()
+        };
+        let _ = writeln!(
+            out,
+            "hypothesis \"{}\": {}{conditions}, {}{shift}{power}; tested at α = {}",
+            h.name,
+            kind_name(h.kind),
+            sided_name(h.sided),
+            plain(plan.study().alpha)
+        );
+    }
+    let t = plan.targets();
+    let mut targets = Vec::new();
+    if let Some(p) = t.power {
+        targets.push(format!("power ≥ {}", plain(p)));
+    }
+    for (q, w) in &t.half_width {
+        targets.push(format!("half-width of {} ≤ {}", q.label(), plain(*w)));
+    }
+    if let Some(r) = t.max_correlation {
+        targets.push(format!("|r(d̂′, ĉ)| ≤ {}", plain(r)));
+    }
+    if !targets.is_empty() {
+        let _ = writeln!(
+            out,
+            "targets: {}; searched up to {} trials per condition",
+            targets.join(", "),
+            plan.study().max_trials
+        );
+    }
+    if let Some(a) = plan.animals() {
+        let counts: Vec<String> = a.counts.iter().map(u32::to_string).collect();
+        let cap = a.trial_cap.map_or(String::new(), |c| {
+            format!("; at most {c} trials per animal")
+        });
+        let _ = writeln!(
+            out,
+            "animals: {} animals; between-animal SD of d′ {}, of c {}, correlation {}{cap}",
+            counts.join(", "),
+            plain(a.sd_d_prime),
+            plain(a.sd_criterion),
+            plain(a.correlation)
+        );
+    }
+    if let Some(b) = plan.budget() {
+        let total = b
+            .total
+            .map_or(String::new(), |x| format!("; total {}", plain(x)));
+        let _ = writeln!(
+            out,
+            "budget: {} per animal, {} per trial{total}",
+            plain(b.cost_per_animal),
+            plain(b.cost_per_trial)
+        );
+    }
+}
+
+/// The plan's own spelling of a kind of hypothesis.
+fn kind_name(k: TestKind) -> &'static str {
+    match k {
+        TestKind::Bias => "bias",
+        TestKind::IdealCriterion => "ideal-criterion",
+        TestKind::CriterionShift => "criterion-shift",
+        TestKind::SensitivityDifference => "sensitivity-difference",
+        TestKind::UnequalVariance => "unequal-variance",
+        TestKind::GroupDifference => "group-difference",
+    }
+}
+
+/// The plan's own spelling of a direction.
+fn sided_name(s: Sided) -> &'static str {
+    match s {
+        Sided::TwoSided => "two-sided",
+        Sided::Greater => "sided greater",
+        Sided::Less => "sided less",
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::plain;
+
+    #[test]
+    fn numbers_are_written_as_a_plan_would() {
+        assert_eq!(plain(0.18077062663297522), "0.181");
+        assert_eq!(plain(1.0), "1");
+        assert_eq!(plain(-0.25), "-0.25");
+        assert_eq!(plain(-0.0001), "0");
+        assert_eq!(plain(4800.0), "4800");
+    }
 }

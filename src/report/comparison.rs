@@ -6,10 +6,16 @@
 //! its own d′ or criterion makes two designs differ, and such a pair is never compared).
 //! Their common trial counts are compared by the
 //! sampling SD of d̂′ and ĉ across simulated experiments (the standard error an experiment
-//! of that size really has).
+//! of that size really has; the tables call it SD, as it is measured).
+//!
+//! A row where the rating fit is saturated or its σ barely determined (`analytic::scale_fit`)
+//! is flagged: its difference mostly measures estimating σ from too little, not what the
+//! scale records, so its reading says so and names the fix instead of stating a gain or loss.
 
+use super::advice_text::scale_fit_text;
 use super::format::figure;
 use super::style::{new_table, right_align};
+use crate::analytic::scale_fit::ScaleFit;
 use crate::design::{Condition, Response};
 use crate::engine::{Figure, ScenarioSummary};
 use crate::plan::Plan;
@@ -39,6 +45,8 @@ pub struct ComparisonRow {
     /// Bias of the yes/no and rating estimates of d′ (shows a wrong equal-variance model).
     pub bias_d_prime_yes_no: Figure,
     pub bias_d_prime_rating: Figure,
+    /// The rating fit at this count is saturated or its σ barely determined.
+    pub rating_fit_flagged: bool,
 }
 
 /// a ÷ b with its Monte Carlo SE, for independent a and b.
@@ -57,10 +65,16 @@ pub struct Comparison {
     pub rating: String,
     pub categories: usize,
     pub rows: Vec<ComparisonRow>,
+    /// Why rows are flagged, when any is.
+    pub scale_fit: Option<ScaleFit>,
 }
 
 /// Every yes/no–rating pair of the plan with at least one common trial count.
-pub fn comparisons(plan: &Plan, summaries: &[ScenarioSummary]) -> Vec<Comparison> {
+pub fn comparisons(
+    plan: &Plan,
+    summaries: &[ScenarioSummary],
+    scale_fits: &[ScaleFit],
+) -> Vec<Comparison> {
     let mut out = Vec::new();
     for (y, yd) in plan.designs().iter().enumerate() {
         if !(matches!(yd.response, Response::YesNo) && yd.is_single_table()) {
@@ -73,10 +87,15 @@ pub fn comparisons(plan: &Plan, summaries: &[ScenarioSummary]) -> Vec<Comparison
             if !rd.is_single_table() || !same_animal(&yd.conditions[0], &rd.conditions[0]) {
                 continue;
             }
+            let fit = scale_fits.iter().find(|f| f.design == rd.name);
             let rows: Vec<ComparisonRow> = yd
                 .trials
                 .iter()
                 .filter_map(|&t| row(summaries, y, r, t))
+                .map(|mut row| {
+                    row.rating_fit_flagged = fit.is_some_and(|f| f.flags(row.trials));
+                    row
+                })
                 .collect();
             if rows.is_empty() {
                 continue;
@@ -86,6 +105,7 @@ pub fn comparisons(plan: &Plan, summaries: &[ScenarioSummary]) -> Vec<Comparison
                 rating: rd.name.clone(),
                 categories: scale.categories,
                 rows,
+                scale_fit: fit.cloned(),
             });
         }
     }
@@ -120,15 +140,16 @@ fn row(summaries: &[ScenarioSummary], y: usize, r: usize, trials: u32) -> Option
         rmse_ratio_criterion: ratio(rc.rmse, yc.rmse),
         bias_d_prime_yes_no: yd.bias,
         bias_d_prime_rating: rd.bias,
+        rating_fit_flagged: false,
     })
 }
 
-/// "cuts the SE of c by 23% (± 2)" or "raises the SE of c by 5% (± 2)"; ± is the Monte
+/// "cuts the SD of c by 23% (± 2)" or "raises the SD of c by 5% (± 2)"; ± is the Monte
 /// Carlo SE in percentage points.
 fn change(ratio: Figure, what: &str) -> String {
     if !ratio.value.is_finite() {
         return format!(
-            "leaves the change in the SE of {what} unknown (no usable dataset in one of the two designs)"
+            "leaves the change in the SD of {what} unknown (no usable dataset in one of the two designs)"
         );
     }
     let pct = (100.0 * (1.0 - ratio.value)).round();
@@ -139,14 +160,15 @@ fn change(ratio: Figure, what: &str) -> String {
         String::new()
     };
     if pct >= 0.0 {
-        format!("cuts the SE of {what} by {pct:.0}%{pm}")
+        format!("cuts the SD of {what} by {pct:.0}%{pm}")
     } else {
-        format!("raises the SE of {what} by {:.0}%{pm}", -pct)
+        format!("raises the SD of {what} by {:.0}%{pm}", -pct)
     }
 }
 
-/// The comparison block of the terminal report (empty when the plan has no pair).
-pub fn render(comparisons: &[Comparison]) -> String {
+/// The comparison block of the terminal report (empty when the plan has no pair); `level`
+/// is the plan's confidence level (for the scale-fit warning).
+pub fn render(comparisons: &[Comparison], level: f64) -> String {
     let mut out = String::new();
     for c in comparisons {
         let _ = writeln!(
@@ -156,18 +178,22 @@ pub fn render(comparisons: &[Comparison]) -> String {
         );
         let mut t = new_table(vec![
             "trials",
-            "SE d′ yes/no",
-            "SE d′ rating",
+            "SD d′ yes/no",
+            "SD d′ rating",
             "ratio",
-            "SE c yes/no",
-            "SE c rating",
+            "SD c yes/no",
+            "SD c rating",
             "ratio",
             "RMSE ratio d′",
             "RMSE ratio c",
         ]);
         for r in &c.rows {
             t.add_row(vec![
-                r.trials.to_string(),
+                if r.rating_fit_flagged {
+                    format!("{} *", r.trials)
+                } else {
+                    r.trials.to_string()
+                },
                 figure(&r.sd_d_prime_yes_no, 3),
                 figure(&r.sd_d_prime_rating, 3),
                 figure(&r.ratio_d_prime, 2),
@@ -182,9 +208,29 @@ pub fn render(comparisons: &[Comparison]) -> String {
         let _ = writeln!(out, "{t}");
         let _ = writeln!(
             out,
-            "SE = SD of the estimates across simulated experiments; ratios = rating ÷ yes/no; RMSE includes bias."
+            "SD = spread of the estimates across simulated experiments, the standard error an experiment of that size really has; ratios = rating ÷ yes/no; RMSE includes bias."
         );
+        if let Some(f) = &c.scale_fit
+            && c.rows.iter().any(|r| r.rating_fit_flagged)
+        {
+            let _ = writeln!(
+                out,
+                "* not a like-for-like result: {}.",
+                scale_fit_text(f, level)
+            );
+        }
         for r in [c.rows.first(), c.rows.last()].into_iter().flatten() {
+            if r.rating_fit_flagged {
+                let _ = writeln!(
+                    out,
+                    "Reading: at {} trials the {}-step fit is flagged (*): the rating SDs there mostly show σ estimated from too little, so no gain or loss of the scale is read from them.",
+                    r.trials, c.categories
+                );
+                if c.rows.len() == 1 {
+                    break;
+                }
+                continue;
+            }
             let _ = writeln!(
                 out,
                 "Reading: recording the {}-step response {} and {} at {} trials.",
@@ -219,10 +265,10 @@ mod tests {
     #[test]
     fn readings_say_cut_or_raise() {
         let f = |value, mc_se| Figure { value, mc_se };
-        assert_eq!(change(f(0.77, 0.02), "c"), "cuts the SE of c by 23% (± 2)");
+        assert_eq!(change(f(0.77, 0.02), "c"), "cuts the SD of c by 23% (± 2)");
         assert_eq!(
             change(f(1.05, 0.01), "d′"),
-            "raises the SE of d′ by 5% (± 1)"
+            "raises the SD of d′ by 5% (± 1)"
         );
     }
 }

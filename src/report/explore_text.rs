@@ -11,17 +11,14 @@ use crate::analytic::scan::DesignScan;
 fn plain_verdict(info: &ScenarioInformation) -> String {
     verdict_sentence(&info.verdict, info.corr_d_prime_criterion)
 }
+use super::advice_text::{levers_text, scale_fit_text, shortfalls_text};
 use super::identification_text::{condition_text, join_words, range_sentence, verdict_sentence};
+use crate::analytic::advice::{Figures, Yardsticks, shortfalls};
 use crate::cells::verdict::{RANK_TOLERANCE, Verdict, WEAK_CONDITION_NUMBER, WEAK_CORRELATION};
-use crate::infer::z_critical;
 use crate::plan::Plan;
 use serde::Serialize;
 use std::fmt::Write;
 
-/// The reading's target for c: the half-width z·SE(c) at the plan's level below this.
-pub const TARGET_C_HALF_WIDTH: f64 = 0.25;
-/// The reading's target for the trade-off: |r(d̂′, ĉ)| below this.
-pub const TARGET_ABS_CORR: f64 = 0.5;
 /// |r| varying less than this over the scan is reported as one value.
 const FLAT_CORR: f64 = 0.005;
 
@@ -156,25 +153,28 @@ pub fn reading(plan: &Plan, scan: &DesignScan) -> String {
             _ => format!("{} at {} trials", plain_verdict(last), last.trials),
         },
     }];
-    let z = z_critical(level);
+    let y = Yardsticks::of(plan.targets());
+    let c_limit = y.c_half_width;
     let c_ok = |r: &ScenarioInformation| {
-        r.se(crate::vocab::Quantity::Criterion)
-            .is_some_and(|se| z * se < TARGET_C_HALF_WIDTH)
+        Figures::asymptotic(r, level)
+            .half_width_criterion
+            .is_some_and(|w| w < c_limit.at_most)
     };
-    let r_ok = |r: &ScenarioInformation| {
-        r.corr_d_prime_criterion
-            .is_some_and(|c| c.abs() < TARGET_ABS_CORR)
-    };
-    let c_from = first_from(rows, c_ok);
-    let r_from = first_from(rows, r_ok);
-    parts.push(match c_from {
-        Some(n) => {
-            format!("c is pinned to ±{TARGET_C_HALF_WIDTH} ({pct:.0}% half-width) from {n} trials")
+    let r_limit = y.abs_corr.at_most;
+    let r_ok =
+        |r: &ScenarioInformation| r.corr_d_prime_criterion.is_some_and(|c| c.abs() <= r_limit);
+    let c_words = format!(
+        "±{} ({pct:.0}% half-width; {})",
+        c_limit.at_most,
+        if c_limit.from_plan {
+            "the plan's target"
+        } else {
+            "vigil's default yardstick"
         }
-        None => format!(
-            "c is not pinned to ±{TARGET_C_HALF_WIDTH} ({pct:.0}% half-width) up to {} trials",
-            last.trials
-        ),
+    );
+    parts.push(match first_from(rows, c_ok) {
+        Some(n) => format!("c is pinned to {c_words} from {n} trials"),
+        None => format!("c is not pinned to {c_words} up to {} trials", last.trials),
     });
     let rs: Vec<f64> = rows
         .iter()
@@ -185,13 +185,13 @@ pub fn reading(plan: &Plan, scan: &DesignScan) -> String {
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &r| {
             (a.min(r), b.max(r))
         });
-    parts.push(match r_from {
-        Some(n) => format!("|r(d′, c)| is below {TARGET_ABS_CORR} from {n} trials"),
+    parts.push(match first_from(rows, r_ok) {
+        Some(n) => format!("|r(d′, c)| is at most {r_limit} from {n} trials"),
         None if rs.len() == rows.len() && hi - lo < FLAT_CORR => format!(
             "|r(d′, c)| stays at {hi:.2} at every count: more trials do not remove the trade-off"
         ),
         None if rs.len() == rows.len() => format!(
-            "|r(d′, c)| is {:.2} at {} trials ({lo:.2} to {hi:.2} over the scan): more trials do not bring it below {TARGET_ABS_CORR}",
+            "|r(d′, c)| is {:.2} at {} trials ({lo:.2} to {hi:.2} over the scan): more trials do not bring it to {r_limit}",
             rs[rs.len() - 1],
             last.trials
         ),
@@ -202,12 +202,27 @@ pub fn reading(plan: &Plan, scan: &DesignScan) -> String {
             last.trials
         ),
     });
-    match first_from(rows, |r| c_ok(r) && r_ok(r)) {
-        Some(n) => parts.push(format!("both targets are met from {n} trials")),
-        None => parts.push(format!(
-            "both targets together: never up to {} trials",
-            last.trials
-        )),
+    let apart = |r: &ScenarioInformation| shortfalls(&y, &Figures::asymptotic(r, level)).is_empty();
+    match first_from(rows, apart) {
+        Some(n) => parts.push(format!("d′ and c are told apart from {n} trials")),
+        None => {
+            let seen = shortfalls(&y, &Figures::asymptotic(last, level));
+            let mut s = format!(
+                "at {} trials d′ and c are not told apart: {}",
+                last.trials,
+                shortfalls_text(&seen)
+            );
+            if let Some(a) = &scan.advice
+                && !a.levers.is_empty()
+            {
+                s.push_str("; ");
+                s.push_str(&levers_text(&a.levers));
+            }
+            parts.push(s);
+        }
+    }
+    if let Some(f) = &scan.scale_fit {
+        parts.push(format!("warning: {}", scale_fit_text(f, level)));
     }
     parts.join("; ")
 }
@@ -261,8 +276,8 @@ struct Thresholds {
     rank_tolerance: f64,
     weak_condition_number: f64,
     weak_correlation: f64,
-    target_c_half_width: f64,
-    target_abs_corr: f64,
+    /// The yardsticks of the readings: the plan's targets, else vigil's defaults.
+    yardsticks: Yardsticks,
 }
 
 #[derive(Serialize)]
@@ -297,8 +312,7 @@ pub fn render_json(plan: &Plan, scans: &[DesignScan]) -> serde_json::Result<Vec<
             rank_tolerance: RANK_TOLERANCE,
             weak_condition_number: WEAK_CONDITION_NUMBER,
             weak_correlation: WEAK_CORRELATION,
-            target_c_half_width: TARGET_C_HALF_WIDTH,
-            target_abs_corr: TARGET_ABS_CORR,
+            yardsticks: Yardsticks::of(plan.targets()),
         },
         designs: scans
             .iter()
@@ -355,6 +369,8 @@ mod tests {
             record: "yes/no".into(),
             parameters: vec!["d′".into(), "c".into()],
             rows,
+            advice: None,
+            scale_fit: None,
         }
     }
 
@@ -375,11 +391,13 @@ mod tests {
         let text = reading(&plan(), &s);
         // z₀.₉₇₅·0.12 < 0.25 at 20 trials, but 40 trials breaks it: the target holds from 80.
         assert!(
-            text.contains("c is pinned to ±0.25 (95% half-width) from 80 trials"),
+            text.contains(
+                "c is pinned to ±0.25 (95% half-width; vigil's default yardstick) from 80 trials"
+            ),
             "{text}"
         );
         assert!(
-            text.contains("|r(d′, c)| is below 0.5 from 80 trials"),
+            text.contains("|r(d′, c)| is at most 0.5 from 80 trials"),
             "{text}"
         );
         assert!(
@@ -405,7 +423,7 @@ mod tests {
             "{text}"
         );
         assert!(
-            text.contains("both targets together: never up to 40 trials"),
+            text.contains("at 40 trials d′ and c are not told apart: their estimates trade off"),
             "{text}"
         );
     }

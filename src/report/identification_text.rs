@@ -3,8 +3,9 @@
 
 use crate::cells::verdict::{ProfileRange, RangeEnd, Verdict};
 
-/// "d′ from 0.82 to 2.41", "d′ up to 1.79, unbounded below (no limit down to −8.40, the
-/// edge of the search window)", "c unbounded both ways (no limit within −10.30 … 9.70, the
+/// "d′ from 0.82 to 2.41", "d′ anywhere from 0.00 (the smallest value allowed) up to 1.79",
+/// "c up to 1.79, unbounded below (no limit down to −8.40, the edge of the search window)",
+/// "c unbounded both ways (no limit within −10.30 … 9.70, the
 /// search window)".
 pub fn range_sentence(range: &ProfileRange) -> String {
     let p = &range.parameter;
@@ -21,6 +22,13 @@ pub fn range_sentence(range: &ProfileRange) -> String {
         (RangeEnd::BeyondWindow { edge: lo }, RangeEnd::BeyondWindow { edge: hi }) => format!(
             "{p} unbounded both ways (no limit within {lo:.2} … {hi:.2}, the search window)"
         ),
+        (RangeEnd::Floor { value: lo }, RangeEnd::At { value: hi }) => {
+            format!("{p} anywhere from {lo:.2} (the smallest value allowed) up to {hi:.2}")
+        }
+        (RangeEnd::Floor { value: lo }, RangeEnd::BeyondWindow { edge }) => format!(
+            "{p} anywhere from {lo:.2} (the smallest value allowed) up, unbounded above (no limit up to {edge:.2}, the edge of the search window)"
+        ),
+        (_, RangeEnd::Floor { value }) => format!("{p} at its smallest allowed value {value:.2}"),
     }
 }
 
@@ -114,6 +122,22 @@ mod tests {
         assert_eq!(condition_text(3.2e6), "3.2e6");
         assert_eq!(condition_text(12.34), "12.3");
         assert_eq!(condition_text(f64::INFINITY), "∞");
+    }
+
+    #[test]
+    fn a_range_of_d_prime_stops_at_its_floor() {
+        let r = ProfileRange {
+            parameter: "d′".into(),
+            truth: 1.6,
+            level: 0.95,
+            lower: RangeEnd::Floor { value: 0.0 },
+            upper: RangeEnd::At { value: 1.79 },
+            inner_failures: 0,
+        };
+        assert_eq!(
+            range_sentence(&r),
+            "d′ anywhere from 0.00 (the smallest value allowed) up to 1.79"
+        );
     }
 
     #[test]

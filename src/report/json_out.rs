@@ -13,6 +13,8 @@ struct Document<'a> {
     plan: &'a Plan,
     results: &'a [ScenarioSummary],
     comparisons: Vec<super::comparison::Comparison>,
+    /// What the expected information adds to the readings (advice, scale-fit flags).
+    advice: &'a crate::analytic::advice::RunAdvice,
     searches: &'a [crate::search::SearchResult],
     #[serde(skip_serializing_if = "Option::is_none")]
     groups: Option<&'a crate::groups::GroupReport>,
@@ -25,6 +27,7 @@ pub fn render(
     summaries: &[ScenarioSummary],
     searches: &[crate::search::SearchResult],
     groups: Option<&crate::groups::GroupReport>,
+    advice: &crate::analytic::advice::RunAdvice,
 ) -> serde_json::Result<Vec<u8>> {
     let doc = Document {
         tool: "vigil",
@@ -32,7 +35,8 @@ pub fn render(
         seed: plan.study().seed,
         plan,
         results: summaries,
-        comparisons: super::comparison::comparisons(plan, summaries),
+        comparisons: super::comparison::comparisons(plan, summaries, &advice.scale_fits),
+        advice,
         searches,
         groups,
         caution: super::CAUTION,

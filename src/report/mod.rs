@@ -3,6 +3,7 @@
 //! Nothing here computes statistics; it formats what the engine summarised. Output files
 //! are written whole or not at all by [`crate::output`].
 
+pub mod advice_text;
 pub mod check_text;
 pub mod comparison;
 pub mod conditions_text;

@@ -1,20 +1,39 @@
-//! One line per design saying what its numbers mean for the person planning.
+//! One line per design saying what its numbers mean for the person planning. Whether d′ and
+//! c are told apart is judged by the one rule of `analytic::advice` (shared with `vigil
+//! explore`); what to change, by the expected information (`Advice`).
 
+use super::advice_text::{levers_text, scale_fit_text, shortfalls_text};
 use super::format::number;
 use super::identification_text::identification_note;
+use crate::analytic::advice::{Advice, Figures, Shortfall, Yardsticks, shortfalls};
+use crate::analytic::scale_fit::ScaleFit;
 use crate::cells::verdict::Verdict;
-use crate::design::Design;
+use crate::design::{Design, RecordKind};
 use crate::engine::ScenarioSummary;
-use crate::vocab::Quantity;
+use crate::plan::Plan;
+use crate::vocab::{Quantity, RateCorrection};
 
-/// |r(d̂′, ĉ)| below this is read as "told apart".
-pub const SEPARATED_R: f64 = 0.3;
-/// Share of datasets with a rate of 0 or 1 above which estimates lean on the correction.
+/// Share of datasets with a rate of 0 or 1 above which the reading mentions them.
 pub const EXTREME_WARN: f64 = 0.10;
 
+/// What a reading is given beside the simulated rows.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct ReadingContext<'a> {
+    /// The expected information's advice at the largest count, when it falls short.
+    pub advice: Option<&'a Advice>,
+    /// Flags of a rating fit with σ free.
+    pub scale_fit: Option<&'a ScaleFit>,
+}
+
 /// A plain-words reading of one design's rows (trial counts increasing).
-pub fn reading(design: &Design, rows: &[&ScenarioSummary], level: f64) -> String {
-    let Some(last) = rows.last() else {
+pub fn reading(
+    plan: &Plan,
+    design: &Design,
+    rows: &[&ScenarioSummary],
+    context: ReadingContext,
+) -> String {
+    let level = plan.study().confidence;
+    let (Some(_), Some(last)) = (rows.first(), rows.last()) else {
         return format!("{}: nothing to report.", design.name);
     };
     if let Some(id) = &last.identification
@@ -77,46 +96,16 @@ pub fn reading(design: &Design, rows: &[&ScenarioSummary], level: f64) -> String
             lost.join(", ")
         ));
     }
-    match usable
-        .iter()
-        .find(|s| s.correlation.value.abs() <= SEPARATED_R)
-    {
-        Some(s) if s.scenario.trials == first.scenario.trials => parts.push(format!(
-            "bias and sensitivity are told apart at every count (|r| ≤ {})",
-            number(
-                first
-                    .correlation
-                    .value
-                    .abs()
-                    .max(last.correlation.value.abs()),
-                2
-            )
-        )),
-        Some(s) => parts.push(format!(
-            "the estimates of d′ and c trade off (|r| = {}) until {} trials",
-            number(first.correlation.value.abs(), 2),
-            s.scenario.trials
-        )),
-        None if !last.correlation.value.is_finite() => parts.push(format!(
-            "the d′–c correlation cannot be computed at {} trials (too few usable datasets)",
-            last.scenario.trials
-        )),
-        None => parts.push(format!(
-            "d′ and c still trade off at {} trials (r = {}): collect more trials or record more",
-            last.scenario.trials,
-            number(last.correlation.value, 2)
-        )),
-    }
+    parts.push(told_apart(plan, &usable, context.advice));
     if let Some(s) = rows
         .iter()
         .rev()
         .find(|s| s.datasets.extreme.value > EXTREME_WARN)
     {
-        parts.push(format!(
-            "at {} trials {:.0}% of datasets hit a rate of 0 or 1, so rows up to there lean on the correction",
-            s.scenario.trials,
-            100.0 * s.datasets.extreme.value
-        ));
+        parts.push(extreme_text(plan, design, s));
+    }
+    if let Some(f) = context.scale_fit {
+        parts.push(format!("warning: {}", scale_fit_text(f, level)));
     }
     if let Some((s, id)) = rows
         .iter()
@@ -129,6 +118,81 @@ pub fn reading(design: &Design, rows: &[&ScenarioSummary], level: f64) -> String
         ));
     }
     format!("{}: {}.", design.name, parts.join("; "))
+}
+
+/// Told apart by the one rule: at every count, from some count on, or not at the largest
+/// (then what the expected information says would change it).
+fn told_apart(plan: &Plan, rows: &[&ScenarioSummary], advice: Option<&Advice>) -> String {
+    let y = Yardsticks::of(plan.targets());
+    let judged: Vec<Vec<Shortfall>> = rows
+        .iter()
+        .map(|s| shortfalls(&y, &Figures::simulated(s)))
+        .collect();
+    let tail = judged.iter().rev().take_while(|s| s.is_empty()).count();
+    let last = rows[rows.len() - 1];
+    let max_r = rows
+        .iter()
+        .map(|s| s.correlation.value.abs())
+        .fold(0.0, f64::max);
+    let limit = y.abs_corr.at_most;
+    if tail == rows.len() {
+        return format!(
+            "d′ and c are told apart at every count (|r| ≤ {max_r:.2}, within {limit}; d′'s interval clear of 0)"
+        );
+    }
+    if tail > 0 {
+        let from = rows[rows.len() - tail];
+        let before = rows[rows.len() - tail - 1];
+        return format!(
+            "d′ and c are told apart from {} trials on; at {} trials {}",
+            from.scenario.trials,
+            before.scenario.trials,
+            shortfalls_text(&judged[rows.len() - tail - 1])
+        );
+    }
+    let mut s = format!(
+        "at {} trials d′ and c are not told apart: {}",
+        last.scenario.trials,
+        shortfalls_text(&judged[rows.len() - 1])
+    );
+    if let Some(a) = advice
+        && !a.levers.is_empty()
+    {
+        s.push_str("; ");
+        s.push_str(&levers_text(&a.levers));
+    }
+    s
+}
+
+/// What a share of datasets with a rate of 0 or 1 means for this design: leaning on the
+/// correction, or left out (no correction, or a coarse record the correction does not touch).
+fn extreme_text(plan: &Plan, design: &Design, s: &ScenarioSummary) -> String {
+    let correction = plan.study().rate_correction;
+    let pct = 100.0 * s.datasets.extreme.value;
+    let trials = s.scenario.trials;
+    if design.record == RecordKind::Full && correction != RateCorrection::None {
+        return format!(
+            "at {trials} trials {pct:.0}% of datasets hit a rate of 0 or 1, so rows up to there lean on the {} correction",
+            correction.name()
+        );
+    }
+    let why = if design.record == RecordKind::Full {
+        "with rate_correction = \"none\" they are not corrected"
+    } else {
+        "a coarse record gets no correction"
+    };
+    let degenerate = s.datasets.degenerate.value;
+    let fate = if degenerate > 0.0 {
+        format!(
+            "{:.1}% have no estimate there and are left out, so the figures describe the rest, not every experiment",
+            100.0 * degenerate
+        )
+    } else {
+        "these were fitted as they are (none had to be left out)".to_string()
+    };
+    format!(
+        "at {trials} trials {pct:.0}% of datasets have an empty cell (a rate of 0 or 1); {why}: {fate}"
+    )
 }
 
 /// The half-width of `q`, the widest over the conditions when each has its own.

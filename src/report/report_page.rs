@@ -21,6 +21,8 @@ pub struct ReportContent<'a> {
     pub summaries: &'a [ScenarioSummary],
     pub searches: &'a [SearchResult],
     pub groups: Option<&'a GroupReport>,
+    /// What the expected information advises for each design (the terminal report's readings).
+    pub advice: &'a crate::analytic::advice::RunAdvice,
     pub figures: &'a [Svg],
     /// Other files of the folder, with what each holds.
     pub files: &'a [(String, String)],
@@ -141,6 +143,7 @@ pub fn build(c: &ReportContent) -> Page {
         c.summaries,
         c.searches,
         c.groups,
+        c.advice,
     )));
     b.push(Block::Heading(2, "The resolved plan".into()));
     b.push(Block::Paragraph(

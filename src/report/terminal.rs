@@ -6,8 +6,9 @@ use super::conditions_text::{
     EXPECTED_NOTE, any_expected, conditions_text, optimal_rule_text, split_text,
 };
 use super::format::{figure, number, percent, plain, share, signed};
-use super::reading::reading;
+use super::reading::{ReadingContext, reading};
 use super::style::{new_table, right_align};
+use crate::analytic::advice::RunAdvice;
 use crate::design::{Design, Response};
 use crate::engine::{Method, ScenarioSummary};
 use crate::plan::Plan;
@@ -16,14 +17,16 @@ use std::fmt::Write;
 
 /// The whole `vigil run` report, composed section by section: the per-design blocks and the
 /// side-by-side comparison, then the sample-size verdict and the group section when there
-/// are any, then the closing caution.
+/// are any, then the closing caution. `advice` is what the expected information adds to the
+/// readings (`RunAdvice::of`).
 pub fn render_run(
     plan: &Plan,
     summaries: &[ScenarioSummary],
     searches: &[crate::search::SearchResult],
     groups: Option<&crate::groups::GroupReport>,
+    advice: &RunAdvice,
 ) -> String {
-    let mut out = render_designs(plan, summaries);
+    let mut out = render_designs(plan, summaries, advice);
     out.push_str(&super::verdict::render(searches, plan.study().max_trials));
     if let Some(g) = groups {
         out.push_str(&super::groups_text::render_section(plan, g));
@@ -32,15 +35,8 @@ pub fn render_run(
     out
 }
 
-/// The report of the simulated scenarios alone, with its closing caution.
-pub fn render(plan: &Plan, summaries: &[ScenarioSummary]) -> String {
-    let mut out = render_designs(plan, summaries);
-    let _ = writeln!(out, "Caution: {CAUTION}");
-    out
-}
-
 /// Header, one block per design and the side-by-side comparison.
-fn render_designs(plan: &Plan, summaries: &[ScenarioSummary]) -> String {
+fn render_designs(plan: &Plan, summaries: &[ScenarioSummary], advice: &RunAdvice) -> String {
     let mut out = String::new();
     header(&mut out, plan, summaries);
     for (d, design) in plan.designs().iter().enumerate() {
@@ -48,11 +44,16 @@ fn render_designs(plan: &Plan, summaries: &[ScenarioSummary]) -> String {
             .iter()
             .filter(|s| s.scenario.design == d)
             .collect();
-        design_block(&mut out, plan, design, &rows);
+        let context = ReadingContext {
+            advice: advice.designs.get(d).and_then(Option::as_ref),
+            scale_fit: advice.scale_fit(&design.name),
+        };
+        design_block(&mut out, plan, design, &rows, context);
     }
-    out.push_str(&super::comparison::render(&super::comparison::comparisons(
-        plan, summaries,
-    )));
+    out.push_str(&super::comparison::render(
+        &super::comparison::comparisons(plan, summaries, &advice.scale_fits),
+        plan.study().confidence,
+    ));
     out
 }
 
@@ -105,14 +106,22 @@ fn header(out: &mut String, plan: &Plan, summaries: &[ScenarioSummary]) {
         100.0 * plan.study().confidence,
         plan.study().rate_correction.name()
     );
-    let _ = writeln!(
-        out,
+    let figures = if exact {
+        "Figures are exact expectations over every possible dataset, each weighted by its probability, so they carry no ±; shares are exact probabilities."
+    } else {
         "Figures are means over datasets ± their Monte Carlo SE; shares carry a 95% Wilson interval."
-    );
+    };
+    let _ = writeln!(out, "{figures}");
     let _ = writeln!(out);
 }
 
-fn design_block(out: &mut String, plan: &Plan, design: &Design, rows: &[&ScenarioSummary]) {
+fn design_block(
+    out: &mut String,
+    plan: &Plan,
+    design: &Design,
+    rows: &[&ScenarioSummary],
+    context: ReadingContext,
+) {
     let detail = match &design.response {
         Response::YesNo => "yes/no".to_string(),
         Response::Rating(s) => format!(
@@ -142,11 +151,7 @@ fn design_block(out: &mut String, plan: &Plan, design: &Design, rows: &[&Scenari
     for line in super::coverage_notes::run_notes(rows, plan.study().confidence) {
         let _ = writeln!(out, "{line}");
     }
-    let _ = writeln!(
-        out,
-        "Reading: {}",
-        reading(design, rows, plan.study().confidence)
-    );
+    let _ = writeln!(out, "Reading: {}", reading(plan, design, rows, context));
     let _ = writeln!(out);
 }
 
