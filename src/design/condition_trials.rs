@@ -8,7 +8,7 @@ use serde::Serialize;
 /// Whether a condition's present and absent trials are fixed by the design.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "kebab-case")]
-pub enum Counts {
+pub enum TrialCounts {
     /// A full record: the experimenter fixes how many trials hold the stimulus.
     Fixed,
     /// Error or response totals: each encounter holds the stimulus with probability
@@ -29,15 +29,15 @@ pub struct ConditionTrials {
     /// scenario's trials.
     pub present: u32,
     pub absent: u32,
-    pub counts: Counts,
+    pub counts: TrialCounts,
 }
 
 impl Design {
     /// Every condition at `trials` trials (or encounters) per condition, in plan order.
     pub fn condition_trials(&self, trials: u32) -> Vec<ConditionTrials> {
         let counts = match self.record {
-            RecordKind::Full => Counts::Fixed,
-            RecordKind::ErrorTotals | RecordKind::ResponseTotals => Counts::Expected,
+            RecordKind::Full => TrialCounts::Fixed,
+            RecordKind::ErrorTotals | RecordKind::ResponseTotals => TrialCounts::Expected,
         };
         self.conditions
             .iter()

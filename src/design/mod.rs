@@ -10,7 +10,7 @@ pub mod quantities;
 mod route;
 mod split;
 
-pub use condition_trials::{ConditionTrials, Counts};
+pub use condition_trials::{ConditionTrials, TrialCounts};
 pub use route::Route;
 pub use split::{Split, split_trials};
 

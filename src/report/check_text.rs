@@ -4,7 +4,7 @@
 
 use super::conditions_text::{EXPECTED_NOTE, any_expected, optimal_rule_text};
 use super::format::number;
-use crate::design::Counts;
+use crate::design::TrialCounts;
 use crate::design::goals::TestKind;
 use crate::plan::Plan;
 use crate::vocab::Sided;
@@ -66,7 +66,7 @@ pub fn render(path: &Path, plan: &Plan) -> String {
         // One row per condition; the scenario's own columns on its first row only.
         for (i, c) in s.conditions.iter().enumerate() {
             let first = |text: String| if i == 0 { text } else { String::new() };
-            let mark = if c.counts == Counts::Expected {
+            let mark = if c.counts == TrialCounts::Expected {
                 "≈"
             } else {
                 ""

@@ -2,22 +2,24 @@
 //! criterion, and the observer's criterion rule, so a multi-condition design never shows
 //! its first condition in place of all of them.
 
-use crate::design::{ConditionTrials, Counts, Design};
+use crate::design::{ConditionTrials, Design, TrialCounts};
 use crate::plan::{CriterionRule, Plan};
 
 /// "8/32", or "≈8/32" for an expected split (error and response totals draw each
 /// encounter's class at the base rate).
 pub fn split_text(c: &ConditionTrials) -> String {
     let mark = match c.counts {
-        Counts::Fixed => "",
-        Counts::Expected => "≈",
+        TrialCounts::Fixed => "",
+        TrialCounts::Expected => "≈",
     };
     format!("{mark}{}/{}", c.present, c.absent)
 }
 
 /// Whether any condition of these scenarios has an expected (not fixed) split.
 pub fn any_expected<'a>(conditions: impl IntoIterator<Item = &'a ConditionTrials>) -> bool {
-    conditions.into_iter().any(|c| c.counts == Counts::Expected)
+    conditions
+        .into_iter()
+        .any(|c| c.counts == TrialCounts::Expected)
 }
 
 /// The footnote that explains "≈" in a split.

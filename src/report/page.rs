@@ -4,7 +4,7 @@
 
 /// One block of the page, in reading order.
 #[derive(Debug, Clone, PartialEq)]
-pub enum Block {
+pub enum PageBlock {
     /// A heading of level 1 to 3.
     Heading(u8, String),
     Paragraph(String),
@@ -28,5 +28,5 @@ pub enum Block {
 #[derive(Debug, Clone, PartialEq)]
 pub struct Page {
     pub title: String,
-    pub blocks: Vec<Block>,
+    pub blocks: Vec<PageBlock>,
 }

@@ -1,7 +1,7 @@
 //! The report page as one self-contained HTML file: styles inline, every figure inlined as
 //! SVG, no script and nothing fetched from elsewhere, so it opens offline and prints whole.
 
-use super::page::{Block, Page};
+use super::page::{Page, PageBlock};
 use std::fmt::Write;
 
 /// Escapes text for HTML element content and attribute values.
@@ -52,20 +52,20 @@ pub fn render(page: &Page) -> String {
     let _ = writeln!(out, "<body>");
     for block in &page.blocks {
         match block {
-            Block::Heading(level, text) => {
+            PageBlock::Heading(level, text) => {
                 let _ = writeln!(out, "<h{level}>{}</h{level}>", escape(text));
             }
-            Block::Paragraph(text) => {
+            PageBlock::Paragraph(text) => {
                 let _ = writeln!(out, "<p>{}</p>", escape(text));
             }
-            Block::List(items) => {
+            PageBlock::List(items) => {
                 let _ = writeln!(out, "<ul>");
                 for item in items {
                     let _ = writeln!(out, "<li>{}</li>", escape(item));
                 }
                 let _ = writeln!(out, "</ul>");
             }
-            Block::Table { header, rows } => {
+            PageBlock::Table { header, rows } => {
                 let _ = writeln!(out, "<table>");
                 let cells: Vec<String> = header
                     .iter()
@@ -83,7 +83,7 @@ pub fn render(page: &Page) -> String {
                 let _ = writeln!(out, "</tbody>");
                 let _ = writeln!(out, "</table>");
             }
-            Block::Figure { file, caption, svg } => {
+            PageBlock::Figure { file, caption, svg } => {
                 let _ = writeln!(out, "<figure id=\"{}\">", escape(file));
                 let _ = writeln!(out, "{}", inline_svg(svg).trim_end());
                 let _ = writeln!(
@@ -95,7 +95,7 @@ pub fn render(page: &Page) -> String {
                 );
                 let _ = writeln!(out, "</figure>");
             }
-            Block::Pre(text) => {
+            PageBlock::Pre(text) => {
                 let _ = writeln!(out, "<pre>{}</pre>", escape(text.trim_end()));
             }
         }

@@ -1,7 +1,7 @@
 //! The report page as Markdown, for pasting into a proposal: the same blocks as the HTML
 //! page, figures as links to the SVG files beside it.
 
-use super::page::{Block, Page};
+use super::page::{Page, PageBlock};
 use std::fmt::Write;
 
 /// A table cell: no line breaks, and `|` escaped so it does not end the cell.
@@ -14,19 +14,19 @@ pub fn render(page: &Page) -> String {
     let mut out = String::new();
     for block in &page.blocks {
         match block {
-            Block::Heading(level, text) => {
+            PageBlock::Heading(level, text) => {
                 let _ = writeln!(out, "{} {text}\n", "#".repeat(usize::from(*level)));
             }
-            Block::Paragraph(text) => {
+            PageBlock::Paragraph(text) => {
                 let _ = writeln!(out, "{text}\n");
             }
-            Block::List(items) => {
+            PageBlock::List(items) => {
                 for item in items {
                     let _ = writeln!(out, "- {item}");
                 }
                 let _ = writeln!(out);
             }
-            Block::Table { header, rows } => {
+            PageBlock::Table { header, rows } => {
                 let head: Vec<String> = header.iter().map(|h| cell(h)).collect();
                 let _ = writeln!(out, "| {} |", head.join(" | "));
                 let _ = writeln!(out, "|{}", " --- |".repeat(header.len()));
@@ -36,11 +36,11 @@ pub fn render(page: &Page) -> String {
                 }
                 let _ = writeln!(out);
             }
-            Block::Figure { file, caption, .. } => {
+            PageBlock::Figure { file, caption, .. } => {
                 let _ = writeln!(out, "![{}]({file})\n", cell(caption));
                 let _ = writeln!(out, "*{caption}*\n");
             }
-            Block::Pre(text) => {
+            PageBlock::Pre(text) => {
                 let _ = writeln!(out, "```text\n{}\n```\n", text.trim_end());
             }
         }

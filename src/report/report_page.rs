@@ -4,7 +4,7 @@
 //! plan. Rendered by `page_html` and `page_markdown`.
 
 use super::format::{figure, number, percent, share};
-use super::page::{Block, Page};
+use super::page::{Page, PageBlock};
 use super::{CAUTION, justification, terminal, verdict};
 use crate::engine::ScenarioSummary;
 use crate::figures::Svg;
@@ -39,8 +39,8 @@ pub fn build(c: &ReportContent) -> Page {
     let study = plan.study();
     let mut b = Vec::new();
     let title = format!("vigil report — {}", study.title);
-    b.push(Block::Heading(1, title.clone()));
-    b.push(Block::Paragraph(format!(
+    b.push(PageBlock::Heading(1, title.clone()));
+    b.push(PageBlock::Paragraph(format!(
         "Made by vigil {} from {}: seed {}, {} simulated experiments per scenario, {:.0}% intervals, α = {}. The same plan and seed give the same numbers on any machine and thread count.",
         env!("CARGO_PKG_VERSION"),
         plan.source().file_name().map_or_else(|| plan.source().display().to_string(), |n| n.to_string_lossy().into_owned()),
@@ -49,42 +49,45 @@ pub fn build(c: &ReportContent) -> Page {
         100.0 * study.confidence,
         study.alpha
     )));
-    b.push(Block::Heading(2, "Cautions".into()));
-    b.push(Block::Paragraph(CAUTION.to_string()));
-    b.push(Block::Heading(2, "Justification (a draft to edit)".into()));
+    b.push(PageBlock::Heading(2, "Cautions".into()));
+    b.push(PageBlock::Paragraph(CAUTION.to_string()));
+    b.push(PageBlock::Heading(
+        2,
+        "Justification (a draft to edit)".into(),
+    ));
     b.extend(
         justification::paragraphs(plan, c.searches, c.groups)
             .into_iter()
-            .map(Block::Paragraph),
+            .map(PageBlock::Paragraph),
     );
     if !c.searches.is_empty() {
-        b.push(Block::Heading(
+        b.push(PageBlock::Heading(
             2,
             "Verdict: the smallest experiment that meets every target".into(),
         ));
-        b.push(Block::Table {
+        b.push(PageBlock::Table {
             header: verdict::HEADER.iter().map(|h| h.to_string()).collect(),
             rows: verdict::rows(c.searches, study.max_trials)
                 .into_iter()
                 .map(|r| r.to_vec())
                 .collect(),
         });
-        b.push(Block::Paragraph(
+        b.push(PageBlock::Paragraph(
             "Power is the likelihood-ratio test's rejection rate with its 95% Wilson interval; ± beside a count is the Monte Carlo uncertainty of the count.".into(),
         ));
     }
     if !c.figures.is_empty() {
-        b.push(Block::Heading(2, "Figures".into()));
+        b.push(PageBlock::Heading(2, "Figures".into()));
         for (i, f) in c.figures.iter().enumerate() {
-            b.push(Block::Figure {
+            b.push(PageBlock::Figure {
                 file: figure_path(f),
                 caption: format!("Figure {}. {}", i + 1, f.title),
                 svg: f.text.clone(),
             });
         }
     }
-    b.push(Block::Heading(2, "Results per design".into()));
-    b.push(Block::Paragraph(
+    b.push(PageBlock::Heading(2, "Results per design".into()));
+    b.push(PageBlock::Paragraph(
         "Means over simulated experiments ± their Monte Carlo SE; shares with their 95% Wilson interval.".into(),
     ));
     for (d, design) in plan.designs().iter().enumerate() {
@@ -96,7 +99,7 @@ pub fn build(c: &ReportContent) -> Page {
         if rows.is_empty() {
             continue;
         }
-        b.push(Block::Heading(
+        b.push(PageBlock::Heading(
             3,
             format!("{} ({})", design.name, design.record_label()),
         ));
@@ -107,10 +110,10 @@ pub fn build(c: &ReportContent) -> Page {
         }
     }
     if let Some(g) = c.groups {
-        b.push(Block::Heading(2, "Groups of animals".into()));
+        b.push(PageBlock::Heading(2, "Groups of animals".into()));
         for dg in &g.designs {
             for (t, test) in dg.tests.iter().enumerate() {
-                b.push(Block::Heading(
+                b.push(PageBlock::Heading(
                     3,
                     format!("{}: power of \"{}\" (two-stage)", dg.design, test.name),
                 ));
@@ -133,26 +136,26 @@ pub fn build(c: &ReportContent) -> Page {
                         row
                     })
                     .collect();
-                b.push(Block::Table { header, rows });
+                b.push(PageBlock::Table { header, rows });
             }
         }
     }
-    b.push(Block::Heading(2, "The whole terminal report".into()));
-    b.push(Block::Pre(terminal::render_run(
+    b.push(PageBlock::Heading(2, "The whole terminal report".into()));
+    b.push(PageBlock::Pre(terminal::render_run(
         plan,
         c.summaries,
         c.searches,
         c.groups,
         c.advice,
     )));
-    b.push(Block::Heading(2, "The resolved plan".into()));
-    b.push(Block::Paragraph(
+    b.push(PageBlock::Heading(2, "The resolved plan".into()));
+    b.push(PageBlock::Paragraph(
         "Every value the run used, defaults filled in, as JSON (the plan file itself is plan.toml in this folder).".into(),
     ));
-    b.push(Block::Pre(
+    b.push(PageBlock::Pre(
         serde_json::to_string_pretty(plan).unwrap_or_else(|e| format!("(not available: {e})")),
     ));
-    b.push(Block::Heading(2, "Files in this folder".into()));
+    b.push(PageBlock::Heading(2, "Files in this folder".into()));
     let mut files: Vec<String> = c
         .files
         .iter()
@@ -163,11 +166,11 @@ pub fn build(c: &ReportContent) -> Page {
             .iter()
             .map(|f| format!("{}: {}", figure_path(f), f.title)),
     );
-    b.push(Block::List(files));
+    b.push(PageBlock::List(files));
     Page { title, blocks: b }
 }
 
-fn precision_table(rows: &[&ScenarioSummary]) -> Block {
+fn precision_table(rows: &[&ScenarioSummary]) -> PageBlock {
     let header = [
         "trials",
         "quantity",
@@ -199,13 +202,13 @@ fn precision_table(rows: &[&ScenarioSummary]) -> Block {
             ]);
         }
     }
-    Block::Table {
+    PageBlock::Table {
         header: header.iter().map(|h| h.to_string()).collect(),
         rows: out,
     }
 }
 
-fn tradeoff_table(rows: &[&ScenarioSummary]) -> Block {
+fn tradeoff_table(rows: &[&ScenarioSummary]) -> PageBlock {
     let header = [
         "trials",
         "r(d̂′, ĉ)",
@@ -213,7 +216,7 @@ fn tradeoff_table(rows: &[&ScenarioSummary]) -> Block {
         "left out: degenerate",
         "left out: not converged",
     ];
-    Block::Table {
+    PageBlock::Table {
         header: header.iter().map(|h| h.to_string()).collect(),
         rows: rows
             .iter()
@@ -230,7 +233,7 @@ fn tradeoff_table(rows: &[&ScenarioSummary]) -> Block {
     }
 }
 
-fn power_table(rows: &[&ScenarioSummary]) -> Block {
+fn power_table(rows: &[&ScenarioSummary]) -> PageBlock {
     let header = [
         "trials",
         "hypothesis",
@@ -253,7 +256,7 @@ fn power_table(rows: &[&ScenarioSummary]) -> Block {
             ]);
         }
     }
-    Block::Table {
+    PageBlock::Table {
         header: header.iter().map(|h| h.to_string()).collect(),
         rows: out,
     }
