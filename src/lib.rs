@@ -62,6 +62,7 @@ pub mod power;
 pub mod progress;
 pub mod report;
 pub mod search;
+pub mod shard;
 pub mod simulate;
 pub mod vocab;
 

@@ -36,6 +36,31 @@ enum Command {
         /// Simulated experiments per scenario, overriding the plan.
         #[arg(long, value_name = "N")]
         experiments: Option<u64>,
+        /// Simulate only part K of a run split into N parts (a job-array task); needs
+        /// --part-file. Combine the parts with `vigil merge` (docs/cluster.md).
+        #[arg(long, value_name = "K/N", value_parser = vigil::shard::Part::parse)]
+        part: Option<vigil::shard::Part>,
+        /// The partial-results file the part writes.
+        #[arg(long, value_name = "FILE")]
+        part_file: Option<PathBuf>,
+        /// No progress bar.
+        #[arg(long, short)]
+        quiet: bool,
+    },
+    /// Combine the partial-results files of a split run (`run --part`) into the outputs of
+    /// one whole run, byte for byte; finishes the search and effort split on this machine.
+    Merge {
+        /// The plan file every part was run from.
+        plan: PathBuf,
+        /// The partial-results files, in any order.
+        #[arg(required = true, value_name = "PART_FILE")]
+        parts: Vec<PathBuf>,
+        /// Also write a tidy CSV (one row per design × trials × quantity).
+        #[arg(long, value_name = "FILE")]
+        csv: Option<PathBuf>,
+        /// Also write everything as JSON, with the resolved plan, seed and version.
+        #[arg(long, value_name = "FILE")]
+        json: Option<PathBuf>,
         /// No progress bar.
         #[arg(long, short)]
         quiet: bool,
@@ -122,6 +147,8 @@ fn main() -> ExitCode {
             json,
             exact,
             experiments,
+            part,
+            part_file,
             quiet,
         } => run(
             RunRequest {
@@ -130,6 +157,23 @@ fn main() -> ExitCode {
                 json,
                 exact,
                 experiments,
+                part,
+                part_file,
+            },
+            quiet,
+        ),
+        Command::Merge {
+            plan,
+            parts,
+            csv,
+            json,
+            quiet,
+        } => merge(
+            app::merge::MergeRequest {
+                plan,
+                parts,
+                csv,
+                json,
             },
             quiet,
         ),
@@ -150,6 +194,14 @@ fn run(req: RunRequest, quiet: bool) -> Result<String, AppError> {
     let prepared = app::prepare(&req)?;
     let bar = vigil::progress::bar(prepared.total_replicates(), quiet);
     let text = app::execute(prepared, &|n| bar.inc(n));
+    bar.finish_and_clear();
+    text
+}
+
+fn merge(req: app::merge::MergeRequest, quiet: bool) -> Result<String, AppError> {
+    let prepared = app::merge::prepare_merge(&req)?;
+    let bar = vigil::progress::bar(prepared.total_replicates(), quiet);
+    let text = app::merge::execute_merge(prepared, &|n| bar.inc(n));
     bar.finish_and_clear();
     text
 }

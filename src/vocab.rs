@@ -6,7 +6,7 @@
 use serde::{Deserialize, Serialize};
 
 /// A quantity the report summarises.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum Quantity {
     DPrime,

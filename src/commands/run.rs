@@ -6,7 +6,8 @@ use crate::engine::ScenarioSummary;
 use crate::evaluate::{self, RunOptions};
 use crate::plan::Plan;
 use crate::report::{self, PendingFile};
-use std::path::PathBuf;
+use crate::shard::{self, MergedTallies, Part};
+use std::path::{Path, PathBuf};
 
 /// Options of `vigil run`.
 #[derive(Debug, Clone, Default)]
@@ -17,6 +18,17 @@ pub struct RunRequest {
     pub exact: bool,
     /// Overrides the plan's number of experiments (quick looks, tests).
     pub experiments: Option<u64>,
+    /// Simulate only this part of a split run (`--part K/N`)…
+    pub part: Option<Part>,
+    /// …and write its partial-results file here (`--part-file`).
+    pub part_file: Option<PathBuf>,
+}
+
+/// A part of a split run: which part, the plan file's hash and the claimed file.
+struct PartOutput {
+    part: Part,
+    plan_hash: String,
+    file: PendingFile,
 }
 
 /// A loaded plan with its claimed output files, ready to run.
@@ -25,11 +37,31 @@ pub struct PreparedRun {
     pub options: RunOptions,
     csv: Option<PendingFile>,
     json: Option<PendingFile>,
+    part: Option<PartOutput>,
 }
 
 impl PreparedRun {
+    /// A whole run of `plan` with these claimed outputs.
+    pub(super) fn from_parts(
+        plan: Plan,
+        options: RunOptions,
+        csv: Option<PendingFile>,
+        json: Option<PendingFile>,
+    ) -> Self {
+        Self {
+            plan,
+            options,
+            csv,
+            json,
+            part: None,
+        }
+    }
+
     /// Replicates the run will simulate (for a progress bar).
     pub fn total_replicates(&self) -> u64 {
+        if let Some(p) = &self.part {
+            return shard::run_part::part_replicates(&self.plan, p.part);
+        }
         let groups = if !self.options.exact && self.plan.animals().is_some() {
             crate::groups::total_group_replicates(&self.plan)
         } else {
@@ -47,30 +79,102 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
     }
     let options = RunOptions { exact: req.exact };
     evaluate::preflight(&plan, options)?;
-    let claim = |p: &Option<PathBuf>| -> Result<Option<PendingFile>, AppError> {
-        p.as_ref()
-            .map(|path| {
-                PendingFile::claim(path).map_err(|source| AppError::Output {
-                    path: path.clone(),
-                    source,
-                })
-            })
-            .transpose()
+    check_part_options(req)?;
+    let part = match (req.part, &req.part_file) {
+        (Some(part), Some(path)) => Some(PartOutput {
+            part,
+            plan_hash: plan_file_hash(&req.plan)?,
+            file: claim(path)?,
+        }),
+        _ => None,
     };
-    let csv = claim(&req.csv)?;
-    let json = claim(&req.json)?;
+    let csv = req.csv.as_deref().map(claim).transpose()?;
+    let json = req.json.as_deref().map(claim).transpose()?;
     Ok(PreparedRun {
         plan,
         options,
         csv,
         json,
+        part,
     })
+}
+
+/// Claims an output file before the long work starts.
+pub(super) fn claim(path: &Path) -> Result<PendingFile, AppError> {
+    PendingFile::claim(path).map_err(|source| AppError::Output {
+        path: path.to_path_buf(),
+        source,
+    })
+}
+
+/// The hash that names the plan file in partial results.
+pub(super) fn plan_file_hash(path: &Path) -> Result<String, AppError> {
+    let bytes = std::fs::read(path)
+        .map_err(|e| AppError::Input(format!("{}: cannot read the plan: {e}", path.display())))?;
+    Ok(shard::plan_hash(&bytes))
+}
+
+/// `--part` and `--part-file` go together, and a part writes nothing else.
+fn check_part_options(req: &RunRequest) -> Result<(), AppError> {
+    let input = |m: &str| Err(AppError::Input(m.into()));
+    match (req.part, &req.part_file) {
+        (None, None) => Ok(()),
+        (Some(_), None) => input(
+            "--part needs --part-file FILE, the partial-results file this part writes (for example --part 3/40 --part-file parts/3.json)",
+        ),
+        (None, Some(_)) => input(
+            "--part-file needs --part K/N, the part of the split run to simulate (for example --part 3/40)",
+        ),
+        (Some(_), Some(_)) if req.exact => input(
+            "--part cannot be combined with --exact: exact enumeration is not simulated in chunks and is quick whole; drop one of them",
+        ),
+        (Some(_), Some(_)) if req.csv.is_some() || req.json.is_some() => input(
+            "--part writes only its partial-results file; --csv and --json are written by `vigil merge PLAN PARTS… --csv FILE --json FILE`",
+        ),
+        (Some(_), Some(_)) => Ok(()),
+    }
 }
 
 /// Runs a prepared plan, writes the output files whole and returns the terminal report.
 pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<String, AppError> {
+    if let Some(out) = run.part {
+        return execute_part(&run.plan, out, progress);
+    }
+    execute_with(run, progress, None)
+}
+
+/// Simulates one part and writes its partial-results file whole.
+fn execute_part(
+    plan: &Plan,
+    out: PartOutput,
+    progress: &(dyn Fn(u64) + Sync),
+) -> Result<String, AppError> {
+    let file = shard::run_part(plan, out.plan_hash, out.part, progress)?;
+    let mut bytes = serde_json::to_vec(&file).map_err(|e| AppError::Internal(e.to_string()))?;
+    bytes.push(b'\n');
+    let path = out.file.target().to_path_buf();
+    out.file.commit(&bytes).map_err(|source| AppError::Output {
+        path: path.clone(),
+        source,
+    })?;
+    Ok(report::shard_text::part_written(
+        out.part,
+        file.chunk_total(),
+        &path,
+    ))
+}
+
+/// [`execute`] of a whole run, or — with `stored` — of merged parts: the fixed points' tallies
+/// come from the parts, the rest (search, effort split, every output) is the same code.
+pub(super) fn execute_with(
+    run: PreparedRun,
+    progress: &(dyn Fn(u64) + Sync),
+    stored: Option<&MergedTallies>,
+) -> Result<String, AppError> {
     let plan = &run.plan;
-    let summaries = evaluate::run_plan(plan, run.options, progress)?;
+    let summaries = evaluate::run_plan_with(plan, run.options, progress, &|s| {
+        stored.and_then(|t| t.scenario(s))
+    })?;
     // With [animals] the targets are judged at group level (the effort split), not for
     // one idealised animal.
     let searches = if plan.targets().any(plan.hypotheses())
@@ -82,7 +186,11 @@ pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<Stri
         Vec::new()
     };
     let groups = match (&plan.animals(), run.options.exact) {
-        (Some(_), false) => Some(crate::groups::run_groups(plan, progress)?),
+        (Some(_), false) => Some(crate::groups::run_groups_with(
+            plan,
+            progress,
+            &|d, a, t| stored.and_then(|m| m.group(d, a, t)),
+        )?),
         _ => None,
     };
     write_outputs(

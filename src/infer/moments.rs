@@ -4,8 +4,10 @@
 //! pairwise merge. Monte Carlo replicates have weight 1; exact enumeration passes each
 //! outcome's probability as its weight, so both paths share one summary code.
 
+use serde::{Deserialize, Serialize};
+
 /// Weighted count, mean and sum of squared deviations of one quantity.
-#[derive(Debug, Clone, Copy, Default, PartialEq)]
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize, Deserialize)]
 pub struct Moments {
     weight: f64,
     count: u64,
@@ -85,7 +87,7 @@ impl Moments {
 }
 
 /// Weighted co-moment of a pair, for the correlation of two estimates.
-#[derive(Debug, Clone, Copy, Default, PartialEq)]
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize, Deserialize)]
 pub struct CoMoments {
     x: Moments,
     y: Moments,

@@ -15,6 +15,7 @@ pub mod identification_text;
 pub mod json_out;
 pub mod output_file;
 pub mod reading;
+pub mod shard_text;
 pub mod style;
 pub mod terminal;
 pub mod verdict;
