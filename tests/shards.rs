@@ -310,3 +310,50 @@ fn part_options_are_checked_before_any_work() {
         assert!(!dir.join("p.json").exists() && !dir.join("x.json").exists());
     }
 }
+
+#[test]
+fn the_slurm_script_runs_the_part_of_its_array_index() {
+    let ws = workspace_with_plans();
+    let dir = ws.path();
+    let plan = "plans/graded-alarm-response.toml";
+    let expected = whole(dir, plan);
+    let script = Path::new(env!("CARGO_MANIFEST_DIR")).join("scripts/vigil-array.sbatch");
+    let bin = Path::new(env!("CARGO_BIN_EXE_vigil")).parent().unwrap();
+    let path = format!(
+        "{}:{}",
+        bin.display(),
+        std::env::var("PATH").unwrap_or_default()
+    );
+    // What SLURM sets for the tasks of `sbatch --array=1-3`.
+    for k in 1..=3 {
+        let out = Command::new("bash")
+            .arg(&script)
+            .args([plan, "parts", "--experiments", EXPERIMENTS])
+            .current_dir(dir)
+            .env("PATH", &path)
+            .env("SLURM_ARRAY_TASK_ID", k.to_string())
+            .env("SLURM_ARRAY_TASK_MIN", "1")
+            .env("SLURM_ARRAY_TASK_MAX", "3")
+            .env("SLURM_ARRAY_TASK_COUNT", "3")
+            .env("SLURM_CPUS_PER_TASK", "1")
+            .output()
+            .unwrap();
+        assert!(out.status.success(), "task {k}: {}", stderr(&out));
+    }
+    let files: Vec<String> = (1..=3).map(|k| format!("parts/part-{k}.json")).collect();
+    assert!(merge(dir, plan, &files) == expected);
+    // An array with a step is refused: its indices are not the parts 1..N.
+    let out = Command::new("bash")
+        .arg(&script)
+        .arg(plan)
+        .current_dir(dir)
+        .env("PATH", &path)
+        .env("SLURM_ARRAY_TASK_ID", "3")
+        .env("SLURM_ARRAY_TASK_MIN", "1")
+        .env("SLURM_ARRAY_TASK_MAX", "5")
+        .env("SLURM_ARRAY_TASK_COUNT", "3")
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
+    assert!(stderr(&out).contains("--array=1-N"));
+}
