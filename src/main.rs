@@ -43,6 +43,13 @@ enum Command {
         /// The partial-results file the part writes.
         #[arg(long, value_name = "FILE")]
         part_file: Option<PathBuf>,
+        /// Save finished chunks to FILE as the run goes (atomically), so an interrupted run
+        /// can resume; removed when the run completes.
+        #[arg(long, value_name = "FILE")]
+        checkpoint: Option<PathBuf>,
+        /// Continue from the checkpoint named by --checkpoint (same plan, seed, options).
+        #[arg(long)]
+        resume: bool,
         /// No progress bar.
         #[arg(long, short)]
         quiet: bool,
@@ -149,6 +156,8 @@ fn main() -> ExitCode {
             experiments,
             part,
             part_file,
+            checkpoint,
+            resume,
             quiet,
         } => run(
             RunRequest {
@@ -159,6 +168,8 @@ fn main() -> ExitCode {
                 experiments,
                 part,
                 part_file,
+                checkpoint,
+                resume,
             },
             quiet,
         ),
@@ -192,6 +203,9 @@ fn main() -> ExitCode {
 
 fn run(req: RunRequest, quiet: bool) -> Result<String, AppError> {
     let prepared = app::prepare(&req)?;
+    if req.checkpoint.is_some() {
+        stop_on_signal();
+    }
     let bar = vigil::progress::bar(prepared.total_replicates(), quiet);
     let text = app::execute(prepared, &|n| bar.inc(n));
     bar.finish_and_clear();
@@ -204,4 +218,17 @@ fn merge(req: app::merge::MergeRequest, quiet: bool) -> Result<String, AppError>
     let text = app::merge::execute_merge(prepared, &|n| bar.inc(n));
     bar.finish_and_clear();
     text
+}
+
+/// SIGINT or SIGTERM: the first asks a checkpointed run to save and stop; a second ends it
+/// at once (the checkpoint on disk is always whole).
+fn stop_on_signal() {
+    use std::sync::atomic::Ordering;
+    let flag = &vigil::shard::checkpoint::INTERRUPTED;
+    let _ = ctrlc::set_handler(move || {
+        if flag.swap(true, Ordering::SeqCst) {
+            std::process::exit(130);
+        }
+        eprintln!("\nstopping: saving the checkpoint (press Ctrl-C again to quit at once)");
+    });
 }

@@ -26,6 +26,15 @@ pub enum AppError {
     Groups(#[from] crate::groups::GroupError),
     #[error("{0}")]
     Shard(#[from] crate::shard::ShardError),
+    #[error(
+        "interrupted: {saved} of {total} chunks of simulated experiments are saved in the checkpoint {path}\n  resume: {resume}"
+    )]
+    Interrupted {
+        path: PathBuf,
+        saved: usize,
+        total: usize,
+        resume: String,
+    },
     #[error("{0}")]
     Internal(String),
 }
@@ -41,6 +50,8 @@ impl AppError {
             | Self::Groups(_)
             | Self::Shard(_) => 2,
             Self::Internal(_) => 1,
+            // The shell's code for a process stopped by SIGINT (128 + 2).
+            Self::Interrupted { .. } => 130,
         }
     }
 }

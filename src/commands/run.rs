@@ -22,6 +22,19 @@ pub struct RunRequest {
     pub part: Option<Part>,
     /// …and write its partial-results file here (`--part-file`).
     pub part_file: Option<PathBuf>,
+    /// Save finished chunks here as the run goes (`--checkpoint`)…
+    pub checkpoint: Option<PathBuf>,
+    /// …and continue from the checkpoint already there (`--resume`).
+    pub resume: bool,
+}
+
+/// A checkpointed run: where the checkpoint lives and what it already holds.
+struct CheckpointRun {
+    path: PathBuf,
+    plan_hash: String,
+    resumed: Option<shard::PartFile>,
+    /// The command to rerun, for the message after an interruption.
+    resume_hint: String,
 }
 
 /// A part of a split run: which part, the plan file's hash and the claimed file.
@@ -38,6 +51,7 @@ pub struct PreparedRun {
     csv: Option<PendingFile>,
     json: Option<PendingFile>,
     part: Option<PartOutput>,
+    checkpoint: Option<CheckpointRun>,
 }
 
 impl PreparedRun {
@@ -54,6 +68,7 @@ impl PreparedRun {
             csv,
             json,
             part: None,
+            checkpoint: None,
         }
     }
 
@@ -88,6 +103,7 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
         }),
         _ => None,
     };
+    let checkpoint = prepare_checkpoint(req, &plan)?;
     let csv = req.csv.as_deref().map(claim).transpose()?;
     let json = req.json.as_deref().map(claim).transpose()?;
     Ok(PreparedRun {
@@ -96,7 +112,57 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
         csv,
         json,
         part,
+        checkpoint,
     })
+}
+
+/// Checks `--checkpoint`/`--resume` and reads the checkpoint to resume from.
+fn prepare_checkpoint(req: &RunRequest, plan: &Plan) -> Result<Option<CheckpointRun>, AppError> {
+    let input = |m: String| Err(AppError::Input(m));
+    let Some(path) = &req.checkpoint else {
+        if req.resume {
+            return input(
+                "--resume needs --checkpoint FILE, the checkpoint to continue from".into(),
+            );
+        }
+        return Ok(None);
+    };
+    if req.part.is_some() || req.exact {
+        return input(
+            "--checkpoint cannot be combined with --part or --exact; a part is short (rerun it whole), and --exact does not simulate"
+                .into(),
+        );
+    }
+    if path.exists() && !req.resume {
+        return input(format!(
+            "{}: a checkpoint is already there; add --resume to continue from it, or delete it to start over",
+            path.display()
+        ));
+    }
+    let plan_hash = plan_file_hash(&req.plan)?;
+    let resumed = if req.resume {
+        shard::checkpoint::load_checkpoint(path, plan, &req.plan, &plan_hash)?
+    } else {
+        None
+    };
+    // Claim the folder now: a checkpoint that cannot be written fails in the first second.
+    drop(claim(path)?);
+    let mut hint = format!("vigil run {}", req.plan.display());
+    if let Some(n) = req.experiments {
+        hint.push_str(&format!(" --experiments {n}"));
+    }
+    for (flag, file) in [("--csv", &req.csv), ("--json", &req.json)] {
+        if let Some(f) = file {
+            hint.push_str(&format!(" {flag} {}", f.display()));
+        }
+    }
+    hint.push_str(&format!(" --checkpoint {} --resume", path.display()));
+    Ok(Some(CheckpointRun {
+        path: path.clone(),
+        plan_hash,
+        resumed,
+        resume_hint: hint,
+    }))
 }
 
 /// Claims an output file before the long work starts.
@@ -140,7 +206,32 @@ pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<Stri
     if let Some(out) = run.part {
         return execute_part(&run.plan, out, progress);
     }
-    execute_with(run, progress, None)
+    let Some(checkpoint) = run.checkpoint else {
+        return execute_with(run, progress, None);
+    };
+    let CheckpointRun {
+        path,
+        plan_hash,
+        resumed,
+        resume_hint,
+    } = checkpoint;
+    let run = PreparedRun {
+        checkpoint: None,
+        ..run
+    };
+    match shard::checkpoint::run_checkpointed(&run.plan, plan_hash, &path, resumed, progress)? {
+        shard::checkpoint::Outcome::Done(totals) => {
+            let text = execute_with(run, progress, Some(&totals))?;
+            shard::checkpoint::remove_checkpoint(&path);
+            Ok(text)
+        }
+        shard::checkpoint::Outcome::Interrupted { saved, total } => Err(AppError::Interrupted {
+            path,
+            saved,
+            total,
+            resume: resume_hint,
+        }),
+    }
 }
 
 /// Simulates one part and writes its partial-results file whole.

@@ -7,6 +7,7 @@
 
 use crate::simulate::{ReplicateRng, replicate_rng};
 use rayon::prelude::*;
+use std::sync::atomic::{AtomicBool, Ordering};
 
 /// Replicates per chunk (one chunk is one sequential task).
 pub const CHUNK: u64 = 256;
@@ -86,6 +87,32 @@ pub fn run_chunks<K: Kernel + ?Sized>(
         out.extend(parts);
     }
     out
+}
+
+/// [`run_chunks`] that starts no chunk once `stop` is set: returns the chunks that finished,
+/// as (chunk, tally), in the order given (for checkpointed runs that can be interrupted).
+pub fn run_chunks_until<K: Kernel + ?Sized>(
+    kernel: &K,
+    seed: u64,
+    scenario: u64,
+    replicates: u64,
+    chunks: &[u64],
+    stop: &AtomicBool,
+    progress: &(dyn Fn(u64) + Sync),
+) -> Vec<(u64, K::Tally)> {
+    let done: Vec<Option<(u64, K::Tally)>> = chunks
+        .par_iter()
+        .map(|&chunk| {
+            if stop.load(Ordering::Relaxed) {
+                return None;
+            }
+            let tally = run_chunk(kernel, seed, scenario, replicates, chunk);
+            let lo = chunk * CHUNK;
+            progress((lo + CHUNK).min(replicates).saturating_sub(lo));
+            Some((chunk, tally))
+        })
+        .collect();
+    done.into_iter().flatten().collect()
 }
 
 /// Runs `replicates` replicates of `kernel`; `progress` is told how many finished.

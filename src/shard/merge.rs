@@ -235,7 +235,11 @@ fn check_chunks(
 }
 
 /// Folds every point's chunks, in chunk order, into its total (the order of a whole run).
-fn fold(plan: &Plan, points: &[Point], files: Vec<PartFile>) -> Result<MergedTallies, ShardError> {
+pub(super) fn fold(
+    plan: &Plan,
+    points: &[Point],
+    files: Vec<PartFile>,
+) -> Result<MergedTallies, ShardError> {
     let per_point = chunk_count(plan.study().experiments) as usize;
     let mut scenario_chunks: HashMap<u64, Vec<Option<EstimateTally>>> = HashMap::new();
     let mut group_chunks: HashMap<(usize, u32, u32), Vec<Option<GroupTally>>> = HashMap::new();

@@ -16,6 +16,7 @@
 //! the fixed points are combined (they simulate a few points, the table and grid many).
 //! docs/cluster.md explains the choice.
 
+pub mod checkpoint;
 pub mod error;
 pub mod merge;
 pub mod part_file;
