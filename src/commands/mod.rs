@@ -2,7 +2,8 @@
 //! `merge`, `explore` and `ideal`. Each loads its input, calls the layers below and hands typed
 //! results to `report`, which writes every sentence.
 //!
-//! Exit codes: 0 success; 2 bad input (plan, options, output path); 1 anything else
+//! Exit codes: 0 success; 2 bad input (plan, options, output path, partial-results or
+//! checkpoint files); 130 a checkpointed run stopped by SIGINT or SIGTERM; 1 anything else
 //! (an I/O failure while writing results).
 
 pub mod check;
