@@ -11,6 +11,7 @@ use crate::design::Response;
 use crate::engine::parallel::run_replicates;
 use crate::engine::scenario_kernel::{FitSettings, ScenarioKernel};
 use crate::engine::summary::{self, Method, ScenarioSummary};
+use crate::engine::tally::EstimateTally;
 use crate::infer::z_critical;
 use crate::plan::{Plan, Scenario};
 use thiserror::Error;
@@ -90,10 +91,28 @@ pub fn run_plan(
     options: RunOptions,
     progress: &(dyn Fn(u64) + Sync),
 ) -> Result<Vec<ScenarioSummary>, RunError> {
+    run_plan_with(plan, options, progress, &|_| None)
+}
+
+/// [`run_plan`], taking a scenario's total tally from `stored` when it has one (the merge
+/// of a run split into parts) instead of simulating it; everything after the tally is the
+/// same code, so merged parts print the bytes of one whole run.
+pub fn run_plan_with(
+    plan: &Plan,
+    options: RunOptions,
+    progress: &(dyn Fn(u64) + Sync),
+    stored: &dyn Fn(&Scenario) -> Option<EstimateTally>,
+) -> Result<Vec<ScenarioSummary>, RunError> {
     preflight(plan, options)?;
     plan.scenarios()
         .iter()
-        .map(|s| run_scenario(plan, s, options, progress))
+        .map(|s| {
+            let summary = match stored(s) {
+                Some(tally) => summarise_simulated(plan, s, &tally),
+                None => simulate_scenario(plan, s, options, progress)?,
+            };
+            Ok(with_information(plan, s, summary))
+        })
         .collect()
 }
 
@@ -104,10 +123,19 @@ pub fn run_scenario(
     options: RunOptions,
     progress: &(dyn Fn(u64) + Sync),
 ) -> Result<ScenarioSummary, RunError> {
-    let mut summary = simulate_scenario(plan, scenario, options, progress)?;
+    let summary = simulate_scenario(plan, scenario, options, progress)?;
+    Ok(with_information(plan, scenario, summary))
+}
+
+/// Puts the expected-information SE and the identification beside a scenario's summary.
+fn with_information(
+    plan: &Plan,
+    scenario: &Scenario,
+    mut summary: ScenarioSummary,
+) -> ScenarioSummary {
     let design = &plan.designs()[scenario.design];
     let Ok(information) = crate::analytic::information::DesignInformation::new(plan, design) else {
-        return Ok(summary);
+        return summary;
     };
     if let Ok(info) = information.at(scenario.trials, false) {
         for q in &mut summary.quantities {
@@ -138,7 +166,7 @@ pub fn run_scenario(
             }
         };
     }
-    Ok(summary)
+    summary
 }
 
 /// The kernel of one scenario: the design's route, and the plan's hypotheses as tests.
@@ -190,10 +218,11 @@ pub fn simulate_scenario(
         study.experiments,
         progress,
     );
-    Ok(summary::summarise(
-        scenario.clone(),
-        &design.name,
-        &tally,
-        Method::MonteCarlo,
-    ))
+    Ok(summarise_simulated(plan, scenario, &tally))
+}
+
+/// The summary of a scenario's simulated total tally.
+fn summarise_simulated(plan: &Plan, scenario: &Scenario, tally: &EstimateTally) -> ScenarioSummary {
+    let design = &plan.designs()[scenario.design];
+    summary::summarise(scenario.clone(), &design.name, tally, Method::MonteCarlo)
 }

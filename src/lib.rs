@@ -85,6 +85,7 @@ pub mod report;
 #[doc(hidden)]
 pub mod search;
 #[doc(hidden)]
+pub mod shard;
 pub mod simulate;
 #[doc(hidden)]
 pub mod spacing;

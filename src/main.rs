@@ -36,12 +36,44 @@ enum Command {
         /// Simulated experiments per scenario, overriding the plan.
         #[arg(long, value_name = "N")]
         experiments: Option<u64>,
-        /// No progress bar.
-        #[arg(long, short)]
-        quiet: bool,
+        /// Simulate only part K of a run split into N parts (a job-array task); needs
+        /// --part-file. Combine the parts with `vigil merge` (docs/cluster.md).
+        #[arg(long, value_name = "K/N", value_parser = vigil::shard::Part::parse)]
+        part: Option<vigil::shard::Part>,
+        /// The partial-results file the part writes.
+        #[arg(long, value_name = "FILE")]
+        part_file: Option<PathBuf>,
+        /// Save finished chunks to FILE as the run goes (atomically), so an interrupted run
+        /// can resume; removed when the run completes.
+        #[arg(long, value_name = "FILE")]
+        checkpoint: Option<PathBuf>,
+        /// Continue from the checkpoint named by --checkpoint (same plan, seed, options).
+        #[arg(long)]
+        resume: bool,
         /// Run even when the work is estimated above the limit (20 minutes on this machine).
         #[arg(long)]
         allow_long_run: bool,
+        /// No progress bar.
+        #[arg(long, short)]
+        quiet: bool,
+    },
+    /// Combine the partial-results files of a split run (`run --part`) into the outputs of
+    /// one whole run, byte for byte; finishes the search and effort split on this machine.
+    Merge {
+        /// The plan file every part was run from.
+        plan: PathBuf,
+        /// The partial-results files, in any order.
+        #[arg(required = true, value_name = "PART_FILE")]
+        parts: Vec<PathBuf>,
+        /// Also write a tidy CSV (one row per design × trials × quantity).
+        #[arg(long, value_name = "FILE")]
+        csv: Option<PathBuf>,
+        /// Also write everything as JSON, with the resolved plan, seed and version.
+        #[arg(long, value_name = "FILE")]
+        json: Option<PathBuf>,
+        /// No progress bar.
+        #[arg(long, short)]
+        quiet: bool,
     },
     /// Run a plan and write a report folder: an HTML page with the figures, the same as
     /// Markdown, a justification text, the figures as SVG, CSV and JSON.
@@ -156,6 +188,10 @@ fn main() -> ExitCode {
             json,
             exact,
             experiments,
+            part,
+            part_file,
+            checkpoint,
+            resume,
             quiet,
             allow_long_run,
         } => run(
@@ -166,6 +202,25 @@ fn main() -> ExitCode {
                 exact,
                 experiments,
                 allow_long_run,
+                part,
+                part_file,
+                checkpoint,
+                resume,
+            },
+            quiet,
+        ),
+        Command::Merge {
+            plan,
+            parts,
+            csv,
+            json,
+            quiet,
+        } => merge(
+            app::merge::MergeRequest {
+                plan,
+                parts,
+                csv,
+                json,
             },
             quiet,
         ),
@@ -187,6 +242,10 @@ fn run(req: RunRequest, quiet: bool) -> Result<String, AppError> {
     if let Some(note) = prepared.note() {
         eprintln!("{note}");
     }
+    if req.checkpoint.is_some() {
+        // The first SIGINT/SIGTERM asks the run to save its checkpoint and stop.
+        vigil::output::stop_gracefully_with(&vigil::shard::checkpoint::INTERRUPTED);
+    }
     let bar = vigil::progress::bar(prepared.total_replicates(), quiet);
     let text = app::execute(prepared, &|n| bar.inc(n));
     bar.finish_and_clear();
@@ -197,6 +256,14 @@ fn report(req: app::report::ReportRequest, quiet: bool) -> Result<String, AppErr
     let prepared = app::report::prepare(&req)?;
     let bar = vigil::progress::bar(prepared.total_replicates(), quiet);
     let text = app::report::execute(prepared, &|n| bar.inc(n));
+    bar.finish_and_clear();
+    text
+}
+
+fn merge(req: app::merge::MergeRequest, quiet: bool) -> Result<String, AppError> {
+    let prepared = app::merge::prepare_merge(&req)?;
+    let bar = vigil::progress::bar(prepared.total_replicates(), quiet);
+    let text = app::merge::execute_merge(prepared, &|n| bar.inc(n));
     bar.finish_and_clear();
     text
 }

@@ -11,7 +11,7 @@ use serde::{Deserialize, Serialize};
 pub const MAX_CATEGORIES: usize = 12;
 
 /// A quantity the report summarises.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum Quantity {
     DPrime,

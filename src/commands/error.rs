@@ -27,6 +27,17 @@ pub enum AppError {
     #[error("{0}")]
     Groups(#[from] crate::groups::GroupError),
     #[error("{0}")]
+    Shard(#[from] crate::shard::ShardError),
+    #[error(
+        "interrupted: {saved} of {total} chunks of simulated experiments are saved in the checkpoint {path}\n  resume: {resume}"
+    )]
+    Interrupted {
+        path: std::path::PathBuf,
+        saved: usize,
+        total: usize,
+        resume: String,
+    },
+    #[error("{0}")]
     Internal(String),
 }
 
@@ -38,9 +49,12 @@ impl AppError {
             | Self::Run(_)
             | Self::Input(_)
             | Self::Groups(_)
-            | Self::OutputFolder { .. } => 2,
+            | Self::OutputFolder { .. }
+            | Self::Shard(_) => 2,
             Self::Output(e) if e.is_bad_input() => 2,
             Self::Output(_) | Self::Internal(_) => 1,
+            // The shell's code for a process stopped by SIGINT (128 + 2).
+            Self::Interrupted { .. } => 130,
         }
     }
 }

@@ -7,6 +7,7 @@
 
 use crate::simulate::{ReplicateRng, replicate_rng};
 use rayon::prelude::*;
+use std::sync::atomic::{AtomicBool, Ordering};
 
 /// Replicates per chunk (one chunk is one sequential task).
 pub const CHUNK: u64 = 256;
@@ -24,15 +25,105 @@ pub trait Kernel: Sync {
     fn merge(&self, into: &mut Self::Tally, other: Self::Tally);
 }
 
+/// Number of chunks of a point of `replicates` replicates.
+pub fn chunk_count(replicates: u64) -> u64 {
+    replicates.div_ceil(CHUNK)
+}
+
+/// Runs chunk `chunk` of a point of `replicates` replicates: replicates
+/// chunk·CHUNK .. min((chunk + 1)·CHUNK, replicates), each on its own stream.
+pub fn run_chunk<K: Kernel + ?Sized>(
+    kernel: &K,
+    seed: u64,
+    scenario: u64,
+    replicates: u64,
+    chunk: u64,
+) -> K::Tally {
+    let mut tally = kernel.tally();
+    let lo = chunk * CHUNK;
+    let hi = (lo + CHUNK).min(replicates);
+    for r in lo..hi {
+        let mut rng = replicate_rng(seed, scenario, r);
+        kernel.replicate(&mut rng, &mut tally);
+    }
+    tally
+}
+
+/// Folds chunk tallies, given in chunk order, into one total exactly as
+/// [`run_replicates`] does (an empty tally first, then each chunk in turn), so a run
+/// split into parts and merged has the bits of one whole run.
+pub fn merge_in_order<K: Kernel + ?Sized>(
+    kernel: &K,
+    chunks: impl IntoIterator<Item = K::Tally>,
+) -> K::Tally {
+    let mut total = kernel.tally();
+    for part in chunks {
+        kernel.merge(&mut total, part);
+    }
+    total
+}
+
+/// Runs the listed chunks (in parallel, blocks of BLOCK_CHUNKS) and returns their tallies
+/// in the order given; for a part of a run split across machines.
+pub fn run_chunks<K: Kernel + ?Sized>(
+    kernel: &K,
+    seed: u64,
+    scenario: u64,
+    replicates: u64,
+    chunks: &[u64],
+    progress: &(dyn Fn(u64) + Sync),
+) -> Vec<K::Tally> {
+    let mut out = Vec::with_capacity(chunks.len());
+    for block in chunks.chunks(BLOCK_CHUNKS as usize) {
+        let parts: Vec<K::Tally> = block
+            .par_iter()
+            .map(|&chunk| {
+                let tally = run_chunk(kernel, seed, scenario, replicates, chunk);
+                let lo = chunk * CHUNK;
+                progress((lo + CHUNK).min(replicates).saturating_sub(lo));
+                tally
+            })
+            .collect();
+        out.extend(parts);
+    }
+    out
+}
+
+/// [`run_chunks`] that starts no chunk once `stop` is set: returns the chunks that finished,
+/// as (chunk, tally), in the order given (for checkpointed runs that can be interrupted).
+pub fn run_chunks_until<K: Kernel + ?Sized>(
+    kernel: &K,
+    seed: u64,
+    scenario: u64,
+    replicates: u64,
+    chunks: &[u64],
+    stop: &AtomicBool,
+    progress: &(dyn Fn(u64) + Sync),
+) -> Vec<(u64, K::Tally)> {
+    let done: Vec<Option<(u64, K::Tally)>> = chunks
+        .par_iter()
+        .map(|&chunk| {
+            if stop.load(Ordering::Relaxed) {
+                return None;
+            }
+            let tally = run_chunk(kernel, seed, scenario, replicates, chunk);
+            let lo = chunk * CHUNK;
+            progress((lo + CHUNK).min(replicates).saturating_sub(lo));
+            Some((chunk, tally))
+        })
+        .collect();
+    done.into_iter().flatten().collect()
+}
+
 /// Runs `replicates` replicates of `kernel`; `progress` is told how many finished.
-pub fn run_replicates<K: Kernel>(
+pub fn run_replicates<K: Kernel + ?Sized>(
     kernel: &K,
     seed: u64,
     scenario: u64,
     replicates: u64,
     progress: &(dyn Fn(u64) + Sync),
 ) -> K::Tally {
-    let chunks = replicates.div_ceil(CHUNK);
+    let chunks = chunk_count(replicates);
     let mut total = kernel.tally();
     let mut start = 0;
     while start < chunks {
@@ -40,14 +131,9 @@ pub fn run_replicates<K: Kernel>(
         let parts: Vec<K::Tally> = (start..end)
             .into_par_iter()
             .map(|chunk| {
-                let mut tally = kernel.tally();
+                let tally = run_chunk(kernel, seed, scenario, replicates, chunk);
                 let lo = chunk * CHUNK;
-                let hi = (lo + CHUNK).min(replicates);
-                for r in lo..hi {
-                    let mut rng = replicate_rng(seed, scenario, r);
-                    kernel.replicate(&mut rng, &mut tally);
-                }
-                progress(hi - lo);
+                progress((lo + CHUNK).min(replicates) - lo);
                 tally
             })
             .collect();

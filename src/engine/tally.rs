@@ -2,10 +2,10 @@
 
 use crate::infer::{CoMoments, FourthMoments, Moments};
 use crate::vocab::Quantity;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 /// Running sums for one estimated quantity.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct QuantityTally {
     pub quantity: Quantity,
     /// The condition this quantity belongs to, for designs with several conditions
@@ -75,7 +75,7 @@ impl QuantityTally {
 
 /// What happened to the simulated datasets, as weights (counts for Monte Carlo,
 /// probabilities for exact enumeration).
-#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize)]
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize, Deserialize)]
 pub struct DatasetWeights {
     /// All datasets.
     pub total: f64,
@@ -90,7 +90,7 @@ pub struct DatasetWeights {
 }
 
 /// Rejections of one hypothesis, as weights.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct TestTally {
     pub hypothesis: String,
     /// Whether the simulated truth satisfies the null (rejections are then type-I errors).
@@ -111,7 +111,7 @@ impl TestTally {
 }
 
 /// Everything a scenario accumulates.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct EstimateTally {
     pub quantities: Vec<QuantityTally>,
     /// Hypothesis tests, when the plan has any this design can test.

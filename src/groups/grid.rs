@@ -8,12 +8,12 @@ use super::animal_cells::CellsAnimals;
 use super::animal_rating::RatingAnimals;
 use super::animal_yesno::YesNoAnimals;
 use super::hypotheses::GroupTest;
-use super::kernel::GroupKernel;
+use super::kernel::{GroupKernel, GroupTally};
 use super::population::Population;
 use super::summary::{GroupSummary, summarise};
 use crate::analytic::trial_grid::fits_design;
 use crate::design::{Design, Response, Route, split_trials};
-use crate::engine::parallel::run_replicates;
+use crate::engine::parallel::{Kernel, run_replicates};
 use crate::plan::Plan;
 
 /// Everything one design fixes for its group studies.
@@ -81,20 +81,46 @@ pub fn run_point(
     seed: u64,
     progress: &(dyn Fn(u64) + Sync),
 ) -> Result<GroupSummary, GroupError> {
+    let kernel = point_kernel(setup, animals, trials)?;
+    let tally = run_replicates(
+        &*kernel,
+        seed,
+        stream_key(setup.index),
+        replicates,
+        progress,
+    );
+    Ok(summarise_point(setup, &tally))
+}
+
+/// The summary of a point's total tally.
+pub fn summarise_point(setup: &DesignSetup, tally: &GroupTally) -> GroupSummary {
+    summarise(&setup.tests, tally, setup.truth())
+}
+
+/// A group kernel behind a pointer: one call per simulated study, so the indirection costs
+/// nothing measurable beside the study's animal fits.
+pub type PointKernel = Box<dyn Kernel<Tally = GroupTally>>;
+
+/// The kernel of group studies of `animals` animals at `trials` per condition, by the route
+/// of a single subject of the design (the one rule, design::Route).
+pub fn point_kernel(
+    setup: &DesignSetup,
+    animals: u32,
+    trials: u32,
+) -> Result<PointKernel, GroupError> {
     let plan = setup.plan;
     let design = setup.design;
     let correction = plan.study().rate_correction;
     let condition = &design.conditions[0];
     let split = split_trials(trials, condition.presence);
-    // The route of a single subject of this design, by the one rule (design::Route).
     Ok(match (Route::of(design), &design.response) {
         (Route::YesNoClosedForm, _) => {
             let path = YesNoAnimals::new(plan.observer(), condition, split, correction);
-            run_path(path, setup, animals, replicates, seed, progress)
+            boxed(path, setup, animals)
         }
         (Route::RatingFastPath, Response::Rating(scale)) => {
             let path = RatingAnimals::new(scale, condition, plan.observer(), split, correction);
-            run_path(path, setup, animals, replicates, seed, progress)
+            boxed(path, setup, animals)
         }
         _ => {
             let path =
@@ -104,21 +130,14 @@ pub fn run_point(
                         message: e.to_string(),
                     }
                 })?;
-            run_path(path, setup, animals, replicates, seed, progress)
+            boxed(path, setup, animals)
         }
     })
 }
 
-fn run_path<P: AnimalPath>(
-    path: P,
-    setup: &DesignSetup,
-    animals: u32,
-    replicates: u64,
-    seed: u64,
-    progress: &(dyn Fn(u64) + Sync),
-) -> GroupSummary {
+fn boxed<P: AnimalPath + 'static>(path: P, setup: &DesignSetup, animals: u32) -> PointKernel {
     let study = &setup.plan.study();
-    let kernel = GroupKernel::new(
+    Box::new(GroupKernel::new(
         path,
         setup.population,
         animals,
@@ -126,10 +145,7 @@ fn run_path<P: AnimalPath>(
         study.alpha,
         study.confidence,
         setup.truth(),
-    );
-    let key = stream_key(setup.index);
-    let tally = run_replicates(&kernel, seed, key, replicates, progress);
-    summarise(&setup.tests, &tally, setup.truth())
+    ))
 }
 
 #[cfg(test)]

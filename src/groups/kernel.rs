@@ -17,9 +17,10 @@ use crate::engine::parallel::Kernel;
 use crate::infer::{FourthMoments, Moments};
 use crate::simulate::ReplicateRng;
 use rand::{Rng, SeedableRng};
+use serde::{Deserialize, Serialize};
 
 /// Running sums for an estimate of a population mean.
-#[derive(Debug, Clone, Default, PartialEq)]
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
 pub struct PrecisionTally {
     /// With third and fourth sums, for the SD's Monte Carlo error.
     pub estimate: FourthMoments,
@@ -47,7 +48,7 @@ impl PrecisionTally {
 }
 
 /// Rejections and failures of one hypothesis.
-#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Serialize, Deserialize)]
 pub struct TestTally {
     pub two_stage_reject: u64,
     /// Studies where the two-stage test had no answer (too few usable animals).
@@ -86,7 +87,7 @@ impl TestTally {
 }
 
 /// Everything a grid cell accumulates.
-#[derive(Debug, Clone, Default, PartialEq)]
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
 pub struct GroupTally {
     pub studies: u64,
     /// Studies with fewer than 2 usable animals (no group mean with an SE).

@@ -38,6 +38,7 @@ use crate::model::LapseSpec;
 use crate::plan::Plan;
 use crate::vocab::RateCorrection;
 use grid::{DesignSetup, grid_trials, run_point};
+use kernel::GroupTally;
 use serde::Serialize;
 use std::sync::atomic::{AtomicU64, Ordering};
 use thiserror::Error;
@@ -111,7 +112,7 @@ pub struct GroupReport {
     pub designs: Vec<DesignGroups>,
 }
 
-fn setups(plan: &Plan) -> Result<Vec<DesignSetup<'_>>, GroupError> {
+pub fn setups(plan: &Plan) -> Result<Vec<DesignSetup<'_>>, GroupError> {
     let animals = plan.animals().as_ref().ok_or(GroupError::NoAnimals)?;
     let population = Population::from_animals(animals);
     Ok(plan
@@ -189,6 +190,17 @@ pub fn animal_datasets_by_design(plan: &Plan) -> Vec<u64> {
 /// Runs the grid of every design and, with a `[budget]`, the effort split; `progress` is told
 /// how many group studies finished.
 pub fn run_groups(plan: &Plan, progress: &(dyn Fn(u64) + Sync)) -> Result<GroupReport, GroupError> {
+    run_groups_with(plan, progress, &|_, _, _| None)
+}
+
+/// [`run_groups`], taking a grid point's total tally from `stored(design index, animals,
+/// trials)` when it has one (the merge of a run split into parts) instead of simulating it.
+/// The effort split always simulates: it chooses each point from the last.
+pub fn run_groups_with(
+    plan: &Plan,
+    progress: &(dyn Fn(u64) + Sync),
+    stored: &dyn Fn(usize, u32, u32) -> Option<GroupTally>,
+) -> Result<GroupReport, GroupError> {
     let animals = plan.animals().as_ref().ok_or(GroupError::NoAnimals)?;
     let total = total_group_replicates(plan);
     let done = AtomicU64::new(0);
@@ -210,14 +222,17 @@ pub fn run_groups(plan: &Plan, progress: &(dyn Fn(u64) + Sync)) -> Result<GroupR
         let mut cells = Vec::new();
         for &n_animals in &animals.counts {
             for &n in &trials {
-                let summary = run_point(
-                    &setup,
-                    n_animals,
-                    n,
-                    plan.study().experiments,
-                    plan.study().seed,
-                    &counted,
-                )?;
+                let summary = match stored(setup.index, n_animals, n) {
+                    Some(tally) => grid::summarise_point(&setup, &tally),
+                    None => run_point(
+                        &setup,
+                        n_animals,
+                        n,
+                        plan.study().experiments,
+                        plan.study().seed,
+                        &counted,
+                    )?,
+                };
                 cells.push(GridCell {
                     animals: n_animals,
                     trials: n,

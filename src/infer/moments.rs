@@ -4,8 +4,10 @@
 //! pairwise merge. Monte Carlo replicates have weight 1; exact enumeration passes each
 //! outcome's probability as its weight, so both paths share one summary code.
 
+use serde::{Deserialize, Serialize};
+
 /// Weighted count, mean and sum of squared deviations of one quantity.
-#[derive(Debug, Clone, Copy, Default, PartialEq)]
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize, Deserialize)]
 pub struct Moments {
     weight: f64,
     count: u64,
@@ -92,7 +94,7 @@ impl Moments {
 /// SAND2008-6212 [memory for the report]; weights enter as counts, and the unit tests check
 /// the sums against two-pass ones at every split), so chunk tallies merged in a fixed order
 /// give fixed bits for any thread count.
-#[derive(Debug, Clone, Copy, Default, PartialEq)]
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize, Deserialize)]
 pub struct FourthMoments {
     base: Moments,
     m3: f64,
@@ -205,7 +207,7 @@ impl FromIterator<f64> for FourthMoments {
 }
 
 /// Weighted co-moment of a pair, for the correlation of two estimates.
-#[derive(Debug, Clone, Copy, Default, PartialEq)]
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize, Deserialize)]
 pub struct CoMoments {
     x: Moments,
     y: Moments,

@@ -27,4 +27,4 @@ pub mod temporaries;
 pub use commit_set::{CommitSet, OUTPUT_ALLOWED, OutputError, Slot};
 pub use pending_file::PendingFile;
 pub use target::{OutputTarget, PathProblem};
-pub use temporaries::cleanup_on_signals;
+pub use temporaries::{cleanup_on_signals, stop_gracefully_with};

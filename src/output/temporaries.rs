@@ -56,6 +56,14 @@ pub fn remove_all() {
 /// already renamed into place stay (they are complete). Called once, by the binary.
 pub fn cleanup_on_signals() -> Result<(), String> {
     ctrlc::set_handler(|| {
+        // A checkpointed run stops at its next chunk boundary and saves; a second signal
+        // (or any signal of a run without a checkpoint) ends the process here.
+        if let Some(flag) = GRACEFUL.get()
+            && !flag.swap(true, std::sync::atomic::Ordering::SeqCst)
+        {
+            eprintln!("\nstopping: saving the checkpoint (press Ctrl-C again to quit at once)");
+            return;
+        }
         // Holding the lock through exit: no commit can start renaming after this point.
         let mut list = live();
         for path in list.drain(..) {
@@ -65,6 +73,16 @@ pub fn cleanup_on_signals() -> Result<(), String> {
         std::process::exit(INTERRUPTED_EXIT_CODE);
     })
     .map_err(|e| e.to_string())
+}
+
+static GRACEFUL: std::sync::OnceLock<&'static std::sync::atomic::AtomicBool> =
+    std::sync::OnceLock::new();
+
+/// Makes the first SIGINT/SIGTERM/SIGHUP set `flag` (the work polls it, saves and stops)
+/// instead of ending the process; a second signal still removes the temporaries and exits.
+/// One handler serves both, since a process may install only one.
+pub fn stop_gracefully_with(flag: &'static std::sync::atomic::AtomicBool) {
+    let _ = GRACEFUL.set(flag);
 }
 
 /// The process id in a temporary file name of ours (`.NAME.vigil-PID.tmp`).

@@ -23,6 +23,7 @@ pub mod page_html;
 pub mod page_markdown;
 pub mod reading;
 pub mod report_page;
+pub mod shard_text;
 pub mod style;
 pub mod terminal;
 pub mod verdict;
