@@ -189,7 +189,7 @@ pub fn run_checkpointed(
                 if todo.is_empty() {
                     continue;
                 }
-                let kernel = scenario_kernel(plan, &s)?;
+                let kernel = scenario_kernel(plan, s)?;
                 for block in todo.chunks(BLOCK_CHUNKS as usize) {
                     let done = run_chunks_until(
                         &kernel,

@@ -271,7 +271,7 @@ pub(super) fn fold(
     for point in points {
         match *point {
             Point::Scenario(ref s) => {
-                let kernel = scenario_kernel(plan, &s)?;
+                let kernel = scenario_kernel(plan, s)?;
                 let slots = scenario_chunks.remove(&s.id).unwrap_or_default();
                 let total = merge_in_order(&kernel, slots.into_iter().flatten());
                 totals.scenarios.insert(s.id, total);
