@@ -71,6 +71,8 @@ pub mod infer;
 #[doc(hidden)]
 pub mod model;
 #[doc(hidden)]
+pub mod pilot;
+#[doc(hidden)]
 pub mod plan;
 #[doc(hidden)]
 pub mod power;

@@ -25,6 +25,8 @@ pub enum AppError {
     #[error("{0}")]
     Groups(#[from] crate::groups::GroupError),
     #[error("{0}")]
+    Pilot(#[from] crate::pilot::PilotError),
+    #[error("{0}")]
     Internal(String),
 }
 
@@ -36,7 +38,8 @@ impl AppError {
             | Self::Run(_)
             | Self::Output { .. }
             | Self::Input(_)
-            | Self::Groups(_) => 2,
+            | Self::Groups(_)
+            | Self::Pilot(_) => 2,
             Self::Internal(_) => 1,
         }
     }

@@ -1,5 +1,5 @@
 //! What each command does, as library functions the binary calls: `check`, `run`,
-//! `explore` and `ideal`. Each loads its input, calls the layers below and hands typed
+//! `explore`, `ideal` and `pilot`. Each loads its input, calls the layers below and hands typed
 //! results to `report`, which writes every sentence.
 //!
 //! Exit codes: 0 success; 2 bad input (plan, options, output path); 1 anything else
@@ -9,6 +9,7 @@ pub mod check;
 pub mod error;
 pub mod explore;
 pub mod ideal;
+pub mod pilot;
 pub mod run;
 
 pub use check::check;

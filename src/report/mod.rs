@@ -14,6 +14,8 @@ pub mod ideal_text;
 pub mod identification_text;
 pub mod json_out;
 pub mod output_file;
+pub mod pilot_plan;
+pub mod pilot_text;
 pub mod reading;
 pub mod style;
 pub mod terminal;
