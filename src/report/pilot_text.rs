@@ -65,9 +65,14 @@ pub fn render(a: &PilotAnalysis, plan_out: Option<&Path>) -> String {
     if a.corrected_tables > 0 {
         let _ = writeln!(
             out,
-            "{} of {} animal × condition tables had a rate of 0 or 1 and were fitted after the {} correction.",
+            "{} of {} animal × condition tables had {} and were fitted after the {} correction.",
             a.corrected_tables,
             p.animals * conditions,
+            if d.categories == 2 {
+                "a rate of 0 or 1"
+            } else {
+                "an empty category"
+            },
             a.settings.correction.name()
         );
     }

@@ -1,0 +1,320 @@
+//! `vigil pilot` from the command line: a good pilot writes a plan `vigil check` accepts;
+//! the spellings of R and pandas long tables read the same; every bad file is refused with
+//! its file, line and column, exit code 2 and nothing written.
+
+mod common;
+
+use common::{stderr, stdout, vigil};
+use std::path::Path;
+
+const GOOD: &str = "animal,stimulus,response,count
+a,present,yes,14
+a,present,no,6
+a,absent,yes,5
+a,absent,no,15
+b,present,yes,17
+b,present,no,3
+b,absent,yes,8
+b,absent,no,12
+c,present,yes,11
+c,present,no,9
+c,absent,yes,2
+c,absent,no,18
+d,present,yes,15
+d,present,no,5
+d,absent,yes,6
+d,absent,no,14
+";
+
+/// Files in `dir` other than `keep`.
+fn others(dir: &Path, keep: &str) -> Vec<String> {
+    std::fs::read_dir(dir)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| n != keep)
+        .collect()
+}
+
+/// Runs `vigil pilot pilot.csv --plan-out plan.toml EXTRA…` on `csv` in a fresh folder.
+fn run_pilot(csv: &str, extra: &[&str]) -> (tempfile::TempDir, std::process::Output) {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("pilot.csv"), csv).unwrap();
+    let mut args = vec!["pilot", "pilot.csv", "--plan-out", "plan.toml"];
+    args.extend_from_slice(extra);
+    let out = vigil(dir.path(), &args);
+    (dir, out)
+}
+
+#[test]
+fn good_pilot_writes_a_plan_that_checks() {
+    let (dir, out) = run_pilot(GOOD, &[]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let text = stdout(&out);
+    assert!(text.contains("between-animal SD of c"), "{text}");
+    assert!(
+        text.contains("animal-welfare body"),
+        "caution missing: {text}"
+    );
+    let plan = std::fs::read_to_string(dir.path().join("plan.toml")).unwrap();
+    assert!(plan.contains("sd_criterion = "), "{plan}");
+    assert!(
+        plan.contains("from pilot.csv"),
+        "each value names its pilot file: {plan}"
+    );
+    let check = vigil(dir.path(), &["check", "plan.toml"]);
+    assert!(check.status.success(), "{}", stderr(&check));
+    // Nothing but the pilot and the plan: the temporary file was renamed into place.
+    let mut files = others(dir.path(), "pilot.csv");
+    files.sort();
+    assert_eq!(files, ["plan.toml"]);
+}
+
+/// The same counts as R's `write.csv` writes them (a quoted empty row-name column, dotted
+/// names, TRUE/FALSE) and as pandas writes them (an index column, 1/0 stimulus codes,
+/// float counts, capitalised headers, one row per trial summed): the same report.
+#[test]
+fn r_and_pandas_spellings_read_the_same() {
+    let (_, canonical) = run_pilot(GOOD, &[]);
+    let mut r = String::from("\"\",\"Animal.ID\",\"Stimulus\",\"Response\",\"n\"\n");
+    let mut pandas = String::from(",Subject,Signal,Answer,Count\n");
+    let mut row = 1;
+    for line in GOOD.lines().skip(1) {
+        let f: Vec<&str> = line.split(',').collect();
+        let stim_r = if f[1] == "present" { "TRUE" } else { "FALSE" };
+        let resp_r = if f[2] == "yes" { "TRUE" } else { "FALSE" };
+        r.push_str(&format!(
+            "\"{row}\",\"{}\",{stim_r},{resp_r},{}\n",
+            f[0], f[3]
+        ));
+        let stim_p = if f[1] == "present" { "1" } else { "0" };
+        let resp_p = if f[2] == "yes" { "Yes" } else { "No" };
+        // One row per trial with a count of 1.0: the reader sums repeated cells.
+        for _ in 0..f[3].parse::<u32>().unwrap() {
+            pandas.push_str(&format!("{row},{},{stim_p},{resp_p},1.0\n", f[0]));
+            row += 1;
+        }
+        row += 1;
+    }
+    for (name, text) in [("R", r), ("pandas", pandas)] {
+        let (_, out) = run_pilot(&text, &[]);
+        assert!(out.status.success(), "{name}: {}", stderr(&out));
+        assert_eq!(stdout(&out), stdout(&canonical), "{name} spelling");
+    }
+}
+
+/// A bad file: exit 2, a message naming file, line and column, and no file written.
+fn refused(csv: &str, extra: &[&str], location: &str, problem: &str) {
+    let (dir, out) = run_pilot(csv, extra);
+    let err = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(err.contains("pilot.csv"), "names the file: {err}");
+    assert!(err.contains(location), "expected `{location}` in: {err}");
+    assert!(err.contains(problem), "expected `{problem}` in: {err}");
+    assert!(err.contains("allowed:"), "says what is allowed: {err}");
+    assert!(!err.contains("panicked"), "{err}");
+    assert!(
+        others(dir.path(), "pilot.csv").is_empty(),
+        "nothing written"
+    );
+}
+
+fn with_line(line: usize, replacement: &str) -> String {
+    GOOD.lines()
+        .enumerate()
+        .map(|(i, l)| if i + 1 == line { replacement } else { l })
+        .collect::<Vec<_>>()
+        .join("\n")
+        + "\n"
+}
+
+#[test]
+fn negative_count() {
+    refused(
+        &with_line(3, "a,present,no,-6"),
+        &[],
+        "line 3, column 4 (`count`)",
+        "negative",
+    );
+}
+
+#[test]
+fn non_integer_count() {
+    refused(
+        &with_line(4, "a,absent,yes,5.5"),
+        &[],
+        "line 4, column 4 (`count`)",
+        "not a whole number",
+    );
+}
+
+#[test]
+fn missing_count() {
+    refused(
+        &with_line(4, "a,absent,yes,NA"),
+        &[],
+        "line 4, column 4 (`count`)",
+        "missing",
+    );
+}
+
+#[test]
+fn unknown_stimulus_label() {
+    refused(
+        &with_line(6, "b,hawk,yes,17"),
+        &[],
+        "line 6, column 2 (`stimulus`)",
+        "unknown stimulus label `hawk`",
+    );
+}
+
+#[test]
+fn response_outside_the_yes_no_scale() {
+    refused(
+        &with_line(7, "b,present,2,3"),
+        &[],
+        "line 7, column 3 (`response`)",
+        "not a category",
+    );
+}
+
+#[test]
+fn category_outside_a_graded_scale() {
+    let csv = "animal,stimulus,response,count\na,present,4,3\na,absent,1,5\na,present,5,2\n";
+    refused(
+        csv,
+        &["--categories", "4"],
+        "line 4, column 3 (`response`)",
+        "`5` is not a category",
+    );
+}
+
+#[test]
+fn animal_with_no_absent_trials() {
+    let csv = GOOD.replace("c,absent,yes,2\nc,absent,no,18\n", "");
+    refused(
+        &csv,
+        &[],
+        "line 10, column 2 (`stimulus`)",
+        "animal `c` (first row here) has no absent-stimulus trials",
+    );
+}
+
+#[test]
+fn animal_missing_a_condition() {
+    let csv = "animal,condition,stimulus,response,count
+a,open,present,yes,3
+a,open,absent,no,3
+a,cover,present,yes,3
+a,cover,absent,no,3
+b,open,present,yes,3
+b,open,absent,yes,3
+";
+    refused(
+        csv,
+        &[],
+        "line 6, column 2 (`condition`)",
+        "no rows for condition `cover`",
+    );
+}
+
+#[test]
+fn missing_column() {
+    let csv = GOOD.replace(
+        "animal,stimulus,response,count",
+        "animal,stimulus,response,cuont",
+    );
+    refused(&csv, &[], "line 1", "no count column");
+}
+
+#[test]
+fn ragged_row() {
+    refused(
+        &with_line(5, "a,absent,no"),
+        &[],
+        "line 5",
+        "3 fields but the header has 4",
+    );
+}
+
+#[test]
+fn empty_file() {
+    refused("", &[], "pilot.csv", "the file is empty");
+}
+
+#[test]
+fn header_only() {
+    refused(
+        "animal,stimulus,response,count\n",
+        &[],
+        "pilot.csv",
+        "no data rows",
+    );
+}
+
+#[test]
+fn bad_options_are_refused_before_reading() {
+    let (dir, out) = run_pilot(GOOD, &["--categories", "4", "--boundary", "4"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("--boundary"), "{}", stderr(&out));
+    assert!(others(dir.path(), "pilot.csv").is_empty());
+    let (dir, out) = run_pilot(GOOD, &["--rate-correction", "laplace"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("half-n"), "{}", stderr(&out));
+    assert!(others(dir.path(), "pilot.csv").is_empty());
+}
+
+#[test]
+fn unwritable_plan_path_fails_without_leftovers() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("pilot.csv"), GOOD).unwrap();
+    let out = vigil(
+        dir.path(),
+        &[
+            "pilot",
+            "pilot.csv",
+            "--plan-out",
+            "no/such/folder/plan.toml",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
+    assert!(stderr(&out).contains("no/such/folder/plan.toml"));
+    assert!(others(dir.path(), "pilot.csv").is_empty());
+}
+
+/// A graded pilot (4 categories, boundary 2) with two conditions: the rating fit per animal
+/// and a skeleton with a scale and conditions that `vigil check` accepts.
+#[test]
+fn graded_pilot_with_conditions_writes_a_plan_that_checks() {
+    let mut csv = String::from("Animal,Treatment,Stimulus,Rating,N\n");
+    let shapes = [
+        ([9, 6, 3, 2], [2, 4, 6, 8]),
+        ([8, 7, 4, 1], [3, 3, 7, 7]),
+        ([10, 5, 4, 1], [1, 5, 6, 8]),
+        ([7, 7, 4, 2], [2, 3, 8, 7]),
+        ([9, 8, 2, 1], [3, 5, 5, 7]),
+    ];
+    for (i, (absent, present)) in shapes.iter().enumerate() {
+        for (cond, shift) in [("open", 0usize), ("cover", 1)] {
+            for k in 0..4 {
+                // The cover condition moves one count toward "absent" in each row.
+                let a = absent[k] + usize::from(k == 0) * shift - usize::from(k == 3) * shift;
+                let p = present[k] + usize::from(k == 0) * shift - usize::from(k == 3) * shift;
+                csv.push_str(&format!(
+                    "m{i},{cond},absent,{},{a}\nm{i},{cond},present,{},{p}\n",
+                    k + 1,
+                    k + 1
+                ));
+            }
+        }
+    }
+    let (dir, out) = run_pilot(&csv, &["--categories", "4"]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let plan = std::fs::read_to_string(dir.path().join("plan.toml")).unwrap();
+    assert!(
+        plan.contains("scale = { categories = 4, boundary = 2"),
+        "{plan}"
+    );
+    assert!(plan.contains("name = \"cover\""), "{plan}");
+    let check = vigil(dir.path(), &["check", "plan.toml"]);
+    assert!(check.status.success(), "{}\n{plan}", stderr(&check));
+}
