@@ -318,3 +318,57 @@ fn graded_pilot_with_conditions_writes_a_plan_that_checks() {
     let check = vigil(dir.path(), &["check", "plan.toml"]);
     assert!(check.status.success(), "{}\n{plan}", stderr(&check));
 }
+
+/// Lines starting with `#` are comments (the bundled pilot is labelled that way) and still
+/// count in the line numbers errors give.
+#[test]
+fn comment_lines_keep_line_numbers() {
+    let csv = format!(
+        "# invented\n# two comment lines\n{}",
+        with_line(3, "a,present,no,x")
+    );
+    refused(
+        &csv,
+        &[],
+        "line 5, column 4 (`count`)",
+        "the count `x` is not a number",
+    );
+}
+
+/// The README's excerpt of the bundled pilot's skeleton (the ```toml block under the
+/// `<!-- file: pilot-plan.toml from vigil … -->` marker) is what the command writes: its
+/// lines appear in the written file, in order and consecutive.
+#[test]
+fn readme_skeleton_excerpt_is_what_the_command_writes() {
+    let readme =
+        std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("README.md")).unwrap();
+    let marker = "<!-- file: pilot-plan.toml from vigil ";
+    let start = readme
+        .find(marker)
+        .expect("the README shows the skeleton excerpt");
+    let rest = &readme[start + marker.len()..];
+    let args: Vec<&str> = rest[..rest.find(" -->").unwrap()]
+        .split_whitespace()
+        .collect();
+    let block = rest
+        .split("```toml\n")
+        .nth(1)
+        .unwrap()
+        .split("```")
+        .next()
+        .unwrap();
+    let excerpt: Vec<&str> = block.lines().collect();
+    assert!(excerpt.len() >= 3, "{excerpt:?}");
+    let dir = common::workspace_with_plans();
+    let out = vigil(dir.path(), &args);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let written = std::fs::read_to_string(dir.path().join("pilot-plan.toml")).unwrap();
+    let lines: Vec<&str> = written.lines().collect();
+    let found = lines
+        .windows(excerpt.len())
+        .any(|w| w == excerpt.as_slice());
+    assert!(
+        found,
+        "README excerpt not in the written skeleton:\n{written}"
+    );
+}
