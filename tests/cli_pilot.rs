@@ -372,3 +372,54 @@ fn readme_skeleton_excerpt_is_what_the_command_writes() {
         "README excerpt not in the written skeleton:\n{written}"
     );
 }
+
+/// Under `--rate-correction none` an animal with a rate of 1 has no fit: it is named and left
+/// out, and the others still give the population values.
+#[test]
+fn animal_without_a_fit_is_named_and_left_out() {
+    let csv = GOOD.replace(
+        "b,present,yes,17\nb,present,no,3",
+        "b,present,yes,20\nb,present,no,0",
+    );
+    let (dir, out) = run_pilot(&csv, &["--rate-correction", "none"]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let text = stdout(&out);
+    assert!(text.contains("Left out: animal `b`"), "{text}");
+    assert!(text.contains("3 animals with a fit"), "{text}");
+    let check = vigil(dir.path(), &["check", "plan.toml"]);
+    assert!(check.status.success(), "{}", stderr(&check));
+}
+
+/// Two animals give means and SDs but no correlation (it needs 3); one animal is refused.
+#[test]
+fn two_animals_suffice_for_sds_and_one_is_refused() {
+    let two: String = GOOD.lines().take(9).map(|l| format!("{l}\n")).collect();
+    let (dir, out) = run_pilot(&two, &[]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    assert!(stdout(&out).contains("needs 3 animals"), "{}", stdout(&out));
+    let check = vigil(dir.path(), &["check", "plan.toml"]);
+    assert!(check.status.success(), "{}", stderr(&check));
+    let one: String = GOOD.lines().take(5).map(|l| format!("{l}\n")).collect();
+    refused(&one, &[], "pilot.csv", "1 animal(s) with a fit");
+}
+
+/// A condition column with a single condition still writes a plan `vigil check` accepts.
+#[test]
+fn one_named_condition_writes_a_plan_that_checks() {
+    let csv: String = GOOD
+        .lines()
+        .enumerate()
+        .map(|(i, l)| {
+            let (a, rest) = l.split_once(',').unwrap();
+            if i == 0 {
+                format!("{a},condition,{rest}\n")
+            } else {
+                format!("{a},open,{rest}\n")
+            }
+        })
+        .collect();
+    let (dir, out) = run_pilot(&csv, &[]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let check = vigil(dir.path(), &["check", "plan.toml"]);
+    assert!(check.status.success(), "{}", stderr(&check));
+}
