@@ -30,9 +30,10 @@ pub fn render(a: &PilotAnalysis) -> String {
     );
     let _ = writeln!(
         out,
-        "# ({} animals with a fit, {} condition(s), {} response categories, {} correction).",
+        "# ({} animals with a fit, {} condition{}, {} response categories, {} correction).",
         p.animals,
         d.conditions.len(),
+        if d.conditions.len() == 1 { "" } else { "s" },
         d.categories,
         a.settings.correction.name()
     );
