@@ -53,6 +53,8 @@
 #[doc(hidden)]
 pub mod analytic;
 #[doc(hidden)]
+pub mod assurance;
+#[doc(hidden)]
 pub mod cells;
 #[doc(hidden)]
 pub mod commands;
