@@ -54,6 +54,8 @@
 #[doc(hidden)]
 pub mod analytic;
 #[doc(hidden)]
+pub mod assurance;
+#[doc(hidden)]
 pub mod cells;
 #[doc(hidden)]
 pub mod commands;
@@ -75,6 +77,9 @@ pub mod infer;
 pub mod model;
 #[doc(hidden)]
 pub mod output;
+#[doc(hidden)]
+pub mod pilot;
+#[doc(hidden)]
 pub mod plan;
 #[doc(hidden)]
 pub mod power;

@@ -108,6 +108,29 @@ enum Command {
         #[arg(long, value_name = "FILE")]
         json: Option<PathBuf>,
     },
+    /// Fit pilot counts (a tidy CSV: animal, condition, stimulus, response, count) animal by
+    /// animal, estimate the population's mean and between-animal SD of d′ and c with
+    /// intervals, and optionally write a plan skeleton holding them (see docs/pilot.md).
+    Pilot {
+        /// The pilot file (CSV).
+        csv: PathBuf,
+        /// Write a plan skeleton (TOML) with the pilot's values, each commented with its interval.
+        #[arg(long, value_name = "FILE")]
+        plan_out: Option<PathBuf>,
+        /// Response categories of the pilot's scale: 2 for yes/no, 3 … 12 for a graded scale.
+        #[arg(long, value_name = "K", default_value_t = 2)]
+        categories: usize,
+        /// On a graded scale, the criterion (1 … K−1) above which responses count as "present"
+        /// (default: K/2, rounded down).
+        #[arg(long, value_name = "B")]
+        boundary: Option<usize>,
+        /// Rule for rates of 0 or 1 in an animal's counts: log-linear, half-n or none.
+        #[arg(long, value_name = "RULE", default_value = "log-linear")]
+        rate_correction: String,
+        /// Seed of the bootstrap over animals (the correlation's interval).
+        #[arg(long, value_name = "N", default_value_t = 1)]
+        seed: u64,
+    },
     /// The ideal observer (Green & Swets 1966): the criterion that maximises the expected
     /// payoff per trial, its rates, and how the false-alarm-to-miss ratio moves with the stakes.
     Ideal {
@@ -182,6 +205,21 @@ fn main() -> ExitCode {
             },
             quiet,
         ),
+        Command::Pilot {
+            csv,
+            plan_out,
+            categories,
+            boundary,
+            rate_correction,
+            seed,
+        } => vigil::commands::pilot::pilot(&vigil::commands::pilot::PilotRequest {
+            csv,
+            plan_out,
+            categories,
+            boundary,
+            rate_correction,
+            seed,
+        }),
         Command::Run {
             plan,
             csv,

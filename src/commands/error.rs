@@ -38,6 +38,8 @@ pub enum AppError {
         resume: String,
     },
     #[error("{0}")]
+    Pilot(#[from] crate::pilot::PilotError),
+    #[error("{0}")]
     Internal(String),
 }
 
@@ -50,7 +52,8 @@ impl AppError {
             | Self::Input(_)
             | Self::Groups(_)
             | Self::OutputFolder { .. }
-            | Self::Shard(_) => 2,
+            | Self::Shard(_)
+            | Self::Pilot(_) => 2,
             Self::Output(e) if e.is_bad_input() => 2,
             Self::Output(_) | Self::Internal(_) => 1,
             // The shell's code for a process stopped by SIGINT (128 + 2).

@@ -1,5 +1,5 @@
 //! What each command does, as library functions the binary calls: `check`, `run`,
-//! `report`, `merge`, `explore` and `ideal`. Each loads its input, calls the layers below and hands typed
+//! `report`, `merge`, `explore`, `ideal` and `pilot`. Each loads its input, calls the layers below and hands typed
 //! results to `report`, which writes every sentence.
 //!
 //! Exit codes: 0 success; 2 bad input (plan, options, output path, partial-results or
@@ -11,6 +11,7 @@ pub mod error;
 pub mod explore;
 pub mod ideal;
 pub mod merge;
+pub mod pilot;
 pub mod report;
 pub mod run;
 

@@ -21,6 +21,8 @@ pub mod output_folder;
 pub mod page;
 pub mod page_html;
 pub mod page_markdown;
+pub mod pilot_plan;
+pub mod pilot_text;
 pub mod reading;
 pub mod report_page;
 pub mod shard_text;

@@ -72,6 +72,13 @@ pub fn workspace_with_plans() -> tempfile::TempDir {
         let file = format!("{name}.toml");
         std::fs::copy(plans_dir().join(&file), plans.join(&file)).unwrap();
     }
+    // Bundled pilot files (`vigil pilot plans/NAME.csv`).
+    for entry in std::fs::read_dir(plans_dir()).unwrap() {
+        let path = entry.unwrap().path();
+        if path.extension().is_some_and(|x| x == "csv") {
+            std::fs::copy(&path, plans.join(path.file_name().unwrap())).unwrap();
+        }
+    }
     dir
 }
 

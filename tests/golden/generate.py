@@ -26,6 +26,8 @@ from golden_support import (
 )
 from error_total_files import error_total_pmf, error_totals_information
 from rating_files import rating_equal_variance, rating_unequal_variance
+from pilot_files import pilot_moments
+from assurance_files import assurance
 
 REFS = "tabulated"  # a check value fixed in advance and asserted to its stated precision
 # Check values fixed in advance that this script reproduces (see each function).
@@ -322,6 +324,8 @@ def main():
     ideal_observer()
     error_totals_information()
     error_total_pmf()
+    pilot_moments()
+    assurance()
     if PRINTED_CHECKS["count"] != EXPECTED_PRINTED_CHECKS:
         raise AssertionError(f"checked {PRINTED_CHECKS['count']} tabulated values, "
                              f"expected {EXPECTED_PRINTED_CHECKS}")

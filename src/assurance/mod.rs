@@ -1,0 +1,76 @@
+//! Assurance: the expected power over a distribution of an uncertain hypothesised value
+//! (O'Hagan, Stevens & Campbell 2005, *Pharmaceutical Statistics* 4:187–201):
+//! A = E_prior[power(θ)], beside the power at the point value.
+//!
+//! This is the computational core only (a prior, its draws and the Monte Carlo expectation
+//! of any power curve); the plan section and the report that use it are still to come.
+//!
+//! # Nested draws
+//!
+//! Two levels of randomness: the uncertain value θ (one draw per imagined study) and the data
+//! given θ. Here the inner level is not simulated: the caller's power curve is the
+//! expectation over data already (for instance the normal-approximation Wald power from the
+//! expected information), so only values are drawn and the Monte Carlo SE of A is
+//! sd(power(θᵢ))/√draws. A power curve that is itself a Monte Carlo estimate from m datasets
+//! per value adds at most A(1 − A)/(draws·m) to that variance; since the outer variance
+//! Var(power(θ))/draws is usually the larger, many values with few datasets each are the
+//! efficient split. Draws are independent of the curve (common random numbers): two designs
+//! compared with the same seed see the same values.
+
+pub mod prior;
+
+pub use prior::{Prior, PriorError};
+
+use rand::SeedableRng;
+use rand_xoshiro::Xoshiro256PlusPlus;
+
+/// An assurance with its Monte Carlo uncertainty and the power at the point value.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct Assurance {
+    /// Mean power over the draws.
+    pub value: f64,
+    /// Monte Carlo SE of `value`: sd(power)/√draws (0 for a degenerate prior).
+    pub mc_se: f64,
+    /// Power at the prior's centre (the plan's point value).
+    pub point_power: f64,
+    pub draws: usize,
+    /// Draws at which the power curve had no value (counted, left out of the mean).
+    pub failed: usize,
+}
+
+/// Assurance of `power` (a power curve over the uncertain value) under `prior`, from `draws`
+/// values drawn with `seed`. `None` when the curve has no value at the point or at any draw.
+pub fn assurance(
+    power: impl Fn(f64) -> Option<f64>,
+    prior: &Prior,
+    draws: usize,
+    seed: u64,
+) -> Option<Assurance> {
+    let point_power = power(prior.centre())?;
+    let mut rng = Xoshiro256PlusPlus::seed_from_u64(seed);
+    let (mut n, mut mean, mut m2, mut failed) = (0usize, 0.0f64, 0.0f64, 0usize);
+    for _ in 0..draws {
+        let theta = prior.draw(&mut rng);
+        match power(theta) {
+            Some(p) if p.is_finite() => {
+                // Welford's running mean and sum of squares (stable for p near 0 or 1).
+                n += 1;
+                let d = p - mean;
+                mean += d / n as f64;
+                m2 += d * (p - mean);
+            }
+            _ => failed += 1,
+        }
+    }
+    if n == 0 {
+        return None;
+    }
+    let var = if n > 1 { m2 / (n - 1) as f64 } else { 0.0 };
+    Some(Assurance {
+        value: mean,
+        mc_se: (var / n as f64).sqrt(),
+        point_power,
+        draws,
+        failed,
+    })
+}
