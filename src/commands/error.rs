@@ -38,7 +38,8 @@ pub enum AppError {
         resume: String,
     },
     #[error("{0}")]
-    Pilot(#[from] crate::pilot::PilotError),
+    /// Boxed: a located pilot-file error is large, and errors travel by value.
+    Pilot(Box<crate::pilot::PilotError>),
     #[error("{0}")]
     Internal(String),
 }
@@ -59,5 +60,11 @@ impl AppError {
             // The shell's code for a process stopped by SIGINT (128 + 2).
             Self::Interrupted { .. } => 130,
         }
+    }
+}
+
+impl From<crate::pilot::PilotError> for AppError {
+    fn from(e: crate::pilot::PilotError) -> Self {
+        Self::Pilot(Box::new(e))
     }
 }
