@@ -167,6 +167,20 @@ pub fn legend_style() -> (ShapeStyle, ShapeStyle) {
     (WHITE.mix(0.9).filled(), INK.stroke_width(1))
 }
 
+/// Draws the series legend at `position` in the one style every figure uses.
+pub fn draw_legend<'a, DB: DrawingBackend + 'a, CT: CoordTranslate>(
+    c: &mut ChartContext<'a, DB, CT>,
+    position: SeriesLabelPosition,
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+    let (bg, border) = legend_style();
+    c.configure_series_labels()
+        .position(position)
+        .background_style(bg)
+        .border_style(border)
+        .label_font(font(12))
+        .draw()
+}
+
 /// Rounded-up axis end with a margin: the smallest round multiple of 10^k at or above
 /// `x × 1.05` (so the largest point is not on the frame).
 pub fn nice_ceiling(x: f64) -> f64 {

@@ -3,7 +3,7 @@
 //! frontier: cost against the weakest test's power for the allocations the effort split
 //! simulated, with the budget line, the target and the chosen allocations.
 
-use super::chart::{self, key, legend_style, marker};
+use super::chart::{self, key, marker};
 use super::palette::{INK, SHADE, colour, light_text_on, marker as marker_of, sequential};
 use super::{FigureError, Svg};
 use crate::groups::DesignGroups;
@@ -239,13 +239,7 @@ pub fn frontier(design: &DesignGroups, name: &str) -> Result<Option<Svg>, Figure
         c.draw_series(std::iter::empty::<Circle<(f64, f64), i32>>())?
             .label("chosen allocation (95% Wilson bars on every point)")
             .legend(|(x, y)| Circle::new((x + 10, y), 6, INK.stroke_width(2)));
-        let (bg, border) = legend_style();
-        c.configure_series_labels()
-            .position(SeriesLabelPosition::LowerRight)
-            .background_style(bg)
-            .border_style(border)
-            .label_font(chart::font(12))
-            .draw()?;
+        chart::draw_legend(&mut c, SeriesLabelPosition::LowerRight)?;
         Ok(())
     })?;
     Ok(Some(Svg {

@@ -3,7 +3,7 @@
 //! expected-information (Wald, normal approximation) curve beside it, the target line and
 //! the count the search chose, with its own interval.
 
-use super::chart::{self, key, legend_style, marker, nice_ceiling};
+use super::chart::{self, key, marker, nice_ceiling};
 use super::inputs::Inputs;
 use super::palette::{INK, SHADE, colour, marker as marker_of};
 use super::{FigureError, Svg};
@@ -168,13 +168,7 @@ pub fn render(inputs: &Inputs, hypothesis: &str, name: &str) -> Result<Option<Sv
                 .label("count the search chose, with its interval")
                 .legend(|(x, y)| Circle::new((x + 10, y), 6, INK.stroke_width(2)));
         }
-        let (bg, border) = legend_style();
-        c.configure_series_labels()
-            .position(SeriesLabelPosition::LowerRight)
-            .background_style(bg)
-            .border_style(border)
-            .label_font(chart::font(12))
-            .draw()?;
+        chart::draw_legend(&mut c, SeriesLabelPosition::LowerRight)?;
         Ok(())
     })?;
     Ok(Some(Svg {

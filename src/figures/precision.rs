@@ -3,7 +3,7 @@
 //! Simulated mean half-widths at the listed counts (with ±1.96 Monte Carlo SE bars) are
 //! drawn over the expected-information curve z·SE.
 
-use super::chart::{self, key, legend_style, marker, nice_ceiling};
+use super::chart::{self, key, marker, nice_ceiling};
 use super::inputs::Inputs;
 use super::palette::{INK, SHADE, colour, marker as marker_of};
 use super::{FigureError, Svg};
@@ -155,13 +155,7 @@ pub fn render(inputs: &Inputs, d: usize, name: &str) -> Result<Option<Svg>, Figu
         c.draw_series(std::iter::empty::<Circle<(f64, f64), i32>>())?
             .label("expected information: z·SE")
             .legend(key(None, INK, true));
-        let (bg, border) = legend_style();
-        c.configure_series_labels()
-            .position(SeriesLabelPosition::UpperRight)
-            .background_style(bg)
-            .border_style(border)
-            .label_font(chart::font(12))
-            .draw()?;
+        chart::draw_legend(&mut c, SeriesLabelPosition::UpperRight)?;
         Ok(())
     })?;
     Ok(Some(Svg {

@@ -3,7 +3,7 @@
 //! yes/no record, every criterion of the scale for a rating design. Rates come from
 //! `Observer::rates`, the one formula the rest of the program uses.
 
-use super::chart::{self, key, legend_style, marker};
+use super::chart::{self, key, marker};
 use super::inputs::Inputs;
 use super::palette::{INK, SHADE, colour, marker as marker_of};
 use super::{FigureError, Svg};
@@ -130,13 +130,7 @@ pub fn render(inputs: &Inputs, z_scale: bool, name: &str) -> Result<Option<Svg>,
                 ))
                 .legend(key(Some(marker_of(d)), col, false));
         }
-        let (bg, border) = legend_style();
-        c.configure_series_labels()
-            .position(SeriesLabelPosition::LowerRight)
-            .background_style(bg)
-            .border_style(border)
-            .label_font(chart::font(12))
-            .draw()?;
+        chart::draw_legend(&mut c, SeriesLabelPosition::LowerRight)?;
         Ok(())
     })?;
     Ok(Some(Svg {

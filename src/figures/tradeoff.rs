@@ -3,7 +3,7 @@
 //! is the likelihood's ridge), and r(d̂′, ĉ) against trials with the expected-information
 //! curve.
 
-use super::chart::{self, key, legend_style, marker, nice_ceiling};
+use super::chart::{self, key, marker, nice_ceiling};
 use super::inputs::Inputs;
 use super::palette::{INK, SHADE, colour, marker as marker_of};
 use super::{FigureError, Svg};
@@ -116,13 +116,7 @@ pub fn ellipses(inputs: &Inputs, name: &str) -> Result<Option<Svg>, FigureError>
         ))?
         .label("hypothesised (d′, c)")
         .legend(|(x, y)| Cross::new((x + 10, y), 5, INK.stroke_width(2)));
-        let (bg, border) = legend_style();
-        c.configure_series_labels()
-            .position(SeriesLabelPosition::UpperRight)
-            .background_style(bg)
-            .border_style(border)
-            .label_font(chart::font(12))
-            .draw()?;
+        chart::draw_legend(&mut c, SeriesLabelPosition::UpperRight)?;
         Ok(())
     })?;
     Ok(Some(Svg {
@@ -207,13 +201,7 @@ pub fn correlation(inputs: &Inputs, name: &str) -> Result<Option<Svg>, FigureErr
         c.draw_series(std::iter::empty::<Circle<(f64, f64), i32>>())?
             .label("expected information")
             .legend(key(None, INK, true));
-        let (bg, border) = legend_style();
-        c.configure_series_labels()
-            .position(SeriesLabelPosition::LowerRight)
-            .background_style(bg)
-            .border_style(border)
-            .label_font(chart::font(12))
-            .draw()?;
+        chart::draw_legend(&mut c, SeriesLabelPosition::LowerRight)?;
         Ok(())
     })?;
     Ok(Some(Svg {
