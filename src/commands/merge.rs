@@ -2,7 +2,7 @@
 //! whole run (terminal, CSV, JSON), byte for byte, after checking every part.
 
 use super::AppError;
-use super::run::{Outputs, PreparedRun, execute_with, plan_file_hash};
+use super::run::{Outputs, PreparedRun, claim_tables, execute_with, plan_file_hash};
 use crate::evaluate::RunOptions;
 use crate::output::CommitSet;
 use crate::plan::Plan;
@@ -54,16 +54,7 @@ pub fn prepare_merge(req: &MergeRequest) -> Result<PreparedMerge, AppError> {
     for part in &req.parts {
         set.input("part", part);
     }
-    let csv = req
-        .csv
-        .as_ref()
-        .map(|p| set.claim("--csv", p))
-        .transpose()?;
-    let json = req
-        .json
-        .as_ref()
-        .map(|p| set.claim("--json", p))
-        .transpose()?;
+    let (csv, json) = claim_tables(&mut set, req.csv.as_deref(), req.json.as_deref())?;
     let (plan, totals) = shard::merge_parts(&plan, &req.plan, &hash, &req.parts)?;
     let outputs = Outputs { set, csv, json };
     let run = PreparedRun::from_parts(plan, RunOptions::default(), outputs);

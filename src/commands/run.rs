@@ -126,16 +126,7 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
         _ => None,
     };
     let checkpoint = prepare_checkpoint(req, &plan)?;
-    let csv = req
-        .csv
-        .as_ref()
-        .map(|p| set.claim("--csv", p))
-        .transpose()?;
-    let json = req
-        .json
-        .as_ref()
-        .map(|p| set.claim("--json", p))
-        .transpose()?;
+    let (csv, json) = claim_tables(&mut set, req.csv.as_deref(), req.json.as_deref())?;
     // A part is a share of the work; the whole run's limit is the merge's business.
     let workload = match &part {
         Some(p) => Workload {
@@ -156,6 +147,17 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
         part,
         checkpoint,
     })
+}
+
+/// Claims the `--csv` and `--json` outputs in `set`.
+pub(super) fn claim_tables(
+    set: &mut CommitSet,
+    csv: Option<&Path>,
+    json: Option<&Path>,
+) -> Result<(Option<Slot>, Option<Slot>), AppError> {
+    let csv = csv.map(|p| set.claim("--csv", p)).transpose()?;
+    let json = json.map(|p| set.claim("--json", p)).transpose()?;
+    Ok((csv, json))
 }
 
 /// Checks `--checkpoint`/`--resume` and reads the checkpoint to resume from.
