@@ -15,6 +15,13 @@ struct Cli {
 
 #[derive(Subcommand)]
 enum Command {
+    /// Print a shell completion script, e.g. `vigil completions bash > ~/.local/share/bash-completion/completions/vigil`.
+    Completions {
+        /// The shell: bash, zsh, fish, elvish or powershell.
+        shell: clap_complete::Shell,
+    },
+    /// Print the manual page (roff), e.g. `vigil manual > vigil.1; man -l vigil.1`.
+    Manual,
     /// Validate a plan and list its scenarios without simulating.
     Check {
         /// The plan file (TOML).
@@ -163,6 +170,19 @@ fn main() -> ExitCode {
         eprintln!("warning: no signal handler ({e}); an interrupt may leave temporary files");
     }
     let result = match cli.command {
+        Command::Completions { shell } => {
+            let mut cmd = <Cli as clap::CommandFactory>::command();
+            let mut bytes = Vec::new();
+            clap_complete::generate(shell, &mut cmd, "vigil", &mut bytes);
+            Ok(String::from_utf8_lossy(&bytes).into_owned())
+        }
+        Command::Manual => {
+            let mut bytes = Vec::new();
+            clap_mangen::Man::new(<Cli as clap::CommandFactory>::command())
+                .render(&mut bytes)
+                .map_err(|e| AppError::Internal(format!("cannot render the manual page: {e}")))
+                .map(|()| String::from_utf8_lossy(&bytes).into_owned())
+        }
         Command::Ideal {
             d_prime,
             presence,
