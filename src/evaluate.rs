@@ -13,6 +13,7 @@ use crate::engine::scenario_kernel::{FitSettings, ScenarioKernel};
 use crate::engine::summary::{self, Method, ScenarioSummary};
 use crate::engine::tally::EstimateTally;
 use crate::infer::z_critical;
+use crate::phase::{Event, Phase, Progress};
 use crate::plan::{Plan, Scenario};
 use thiserror::Error;
 
@@ -89,7 +90,7 @@ pub fn preflight(plan: &Plan, options: RunOptions) -> Result<(), RunError> {
 pub fn run_plan(
     plan: &Plan,
     options: RunOptions,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> Result<Vec<ScenarioSummary>, RunError> {
     run_plan_with(plan, options, progress, &|_| None)
 }
@@ -100,10 +101,13 @@ pub fn run_plan(
 pub fn run_plan_with(
     plan: &Plan,
     options: RunOptions,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
     stored: &dyn Fn(&Scenario) -> Option<EstimateTally>,
 ) -> Result<Vec<ScenarioSummary>, RunError> {
     preflight(plan, options)?;
+    progress(Event::Start(Phase::Table {
+        scenarios: plan.scenarios().len(),
+    }));
     plan.scenarios()
         .iter()
         .map(|s| {
@@ -121,7 +125,7 @@ pub fn run_scenario(
     plan: &Plan,
     scenario: &Scenario,
     options: RunOptions,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> Result<ScenarioSummary, RunError> {
     let summary = simulate_scenario(plan, scenario, options, progress)?;
     Ok(with_information(plan, scenario, summary))
@@ -196,7 +200,7 @@ pub fn simulate_scenario(
     plan: &Plan,
     scenario: &Scenario,
     options: RunOptions,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> Result<ScenarioSummary, RunError> {
     let design = &plan.designs()[scenario.design];
     let study = plan.study();

@@ -78,6 +78,8 @@ pub mod model;
 #[doc(hidden)]
 pub mod output;
 #[doc(hidden)]
+pub mod phase;
+#[doc(hidden)]
 pub mod pilot;
 #[doc(hidden)]
 pub mod plan;

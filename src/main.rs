@@ -4,6 +4,7 @@ use clap::{Parser, Subcommand};
 use std::path::PathBuf;
 use std::process::ExitCode;
 use vigil::commands::{self as app, AppError, RunRequest};
+use vigil::progress::{Renderer, Show};
 
 /// Plan signal-detection experiments before fieldwork.
 #[derive(Parser)]
@@ -11,6 +12,28 @@ use vigil::commands::{self as app, AppError, RunRequest};
 struct Cli {
     #[command(subcommand)]
     command: Command,
+}
+
+/// How a long command shows its progress on stderr.
+#[derive(clap::Args)]
+struct ProgressArgs {
+    /// No progress bar.
+    #[arg(long, short)]
+    quiet: bool,
+    /// Instead of the bar, one plain line per finished phase on stderr (for batch jobs):
+    /// `vigil-phase phase=NAME units=N seconds=S ...`.
+    #[arg(long, conflicts_with = "quiet")]
+    log: bool,
+}
+
+impl ProgressArgs {
+    fn show(&self) -> Show {
+        match (self.quiet, self.log) {
+            (_, true) => Show::Log,
+            (true, false) => Show::Quiet,
+            (false, false) => Show::Bar,
+        }
+    }
 }
 
 #[derive(Subcommand)]
@@ -60,9 +83,8 @@ enum Command {
         /// Run even when the work is estimated above the limit (20 minutes on this machine).
         #[arg(long)]
         allow_long_run: bool,
-        /// No progress bar.
-        #[arg(long, short)]
-        quiet: bool,
+        #[command(flatten)]
+        progress: ProgressArgs,
     },
     /// Combine the partial-results files of a split run (`run --part`) into the outputs of
     /// one whole run, byte for byte; finishes the search and effort split on this machine.
@@ -78,9 +100,8 @@ enum Command {
         /// Also write everything as JSON, with the resolved plan, seed and version.
         #[arg(long, value_name = "FILE")]
         json: Option<PathBuf>,
-        /// No progress bar.
-        #[arg(long, short)]
-        quiet: bool,
+        #[command(flatten)]
+        progress: ProgressArgs,
     },
     /// Run a plan and write a report folder: an HTML page with the figures, the same as
     /// Markdown, a justification text, the figures as SVG, CSV and JSON.
@@ -93,9 +114,8 @@ enum Command {
         /// Simulated experiments per scenario, overriding the plan.
         #[arg(long, value_name = "N")]
         experiments: Option<u64>,
-        /// No progress bar.
-        #[arg(long, short)]
-        quiet: bool,
+        #[command(flatten)]
+        progress: ProgressArgs,
     },
     /// Expected information over a fine grid of trial counts: asymptotic SEs, the d′–c
     /// correlation and whether each design can tell bias from sensitivity, without simulating.
@@ -216,14 +236,14 @@ fn main() -> ExitCode {
             plan,
             out,
             experiments,
-            quiet,
+            progress,
         } => report(
             app::report::ReportRequest {
                 plan,
                 out,
                 experiments,
             },
-            quiet,
+            progress,
         ),
         Command::Pilot {
             csv,
@@ -250,7 +270,7 @@ fn main() -> ExitCode {
             part_file,
             checkpoint,
             resume,
-            quiet,
+            progress,
             allow_long_run,
         } => run(
             RunRequest {
@@ -265,14 +285,14 @@ fn main() -> ExitCode {
                 checkpoint,
                 resume,
             },
-            quiet,
+            progress,
         ),
         Command::Merge {
             plan,
             parts,
             csv,
             json,
-            quiet,
+            progress,
         } => merge(
             app::merge::MergeRequest {
                 plan,
@@ -280,7 +300,7 @@ fn main() -> ExitCode {
                 csv,
                 json,
             },
-            quiet,
+            progress,
         ),
     };
     match result {
@@ -295,7 +315,7 @@ fn main() -> ExitCode {
     }
 }
 
-fn run(req: RunRequest, quiet: bool) -> Result<String, AppError> {
+fn run(req: RunRequest, progress: ProgressArgs) -> Result<String, AppError> {
     let prepared = app::prepare(&req)?;
     if let Some(note) = prepared.note() {
         eprintln!("{note}");
@@ -304,24 +324,24 @@ fn run(req: RunRequest, quiet: bool) -> Result<String, AppError> {
         // The first SIGINT/SIGTERM asks the run to save its checkpoint and stop.
         vigil::output::stop_gracefully_with(&vigil::shard::checkpoint::INTERRUPTED);
     }
-    let bar = vigil::progress::bar(prepared.total_replicates(), quiet);
-    let text = app::execute(prepared, &|n| bar.inc(n));
-    bar.finish_and_clear();
+    let shown = Renderer::new(prepared.total_replicates(), progress.show());
+    let text = app::execute(prepared, &|e| shown.event(e));
+    shown.finish();
     text
 }
 
-fn report(req: app::report::ReportRequest, quiet: bool) -> Result<String, AppError> {
+fn report(req: app::report::ReportRequest, progress: ProgressArgs) -> Result<String, AppError> {
     let prepared = app::report::prepare(&req)?;
-    let bar = vigil::progress::bar(prepared.total_replicates(), quiet);
-    let text = app::report::execute(prepared, &|n| bar.inc(n));
-    bar.finish_and_clear();
+    let shown = Renderer::new(prepared.total_replicates(), progress.show());
+    let text = app::report::execute(prepared, &|e| shown.event(e));
+    shown.finish();
     text
 }
 
-fn merge(req: app::merge::MergeRequest, quiet: bool) -> Result<String, AppError> {
+fn merge(req: app::merge::MergeRequest, progress: ProgressArgs) -> Result<String, AppError> {
     let prepared = app::merge::prepare_merge(&req)?;
-    let bar = vigil::progress::bar(prepared.total_replicates(), quiet);
-    let text = app::merge::execute_merge(prepared, &|n| bar.inc(n));
-    bar.finish_and_clear();
+    let shown = Renderer::new(prepared.total_replicates(), progress.show());
+    let text = app::merge::execute_merge(prepared, &|e| shown.event(e));
+    shown.finish();
     text
 }

@@ -5,6 +5,7 @@ use super::AppError;
 use super::run::{Outputs, PreparedRun, claim_tables, execute_with, plan_file_hash};
 use crate::evaluate::RunOptions;
 use crate::output::CommitSet;
+use crate::phase::{Event, Phase, Progress};
 use crate::plan::Plan;
 use crate::shard::{self, MergedTallies};
 use std::path::PathBuf;
@@ -24,6 +25,7 @@ pub struct MergeRequest {
 pub struct PreparedMerge {
     run: PreparedRun,
     totals: MergedTallies,
+    parts: usize,
 }
 
 impl PreparedMerge {
@@ -58,14 +60,16 @@ pub fn prepare_merge(req: &MergeRequest) -> Result<PreparedMerge, AppError> {
     let (plan, totals) = shard::merge_parts(&plan, &req.plan, &hash, &req.parts)?;
     let outputs = Outputs { set, csv, json };
     let run = PreparedRun::from_parts(plan, RunOptions::default(), outputs);
-    Ok(PreparedMerge { run, totals })
+    Ok(PreparedMerge {
+        run,
+        totals,
+        parts: req.parts.len(),
+    })
 }
 
 /// Finishes the merged run (search and effort split), writes the outputs whole and returns
 /// the terminal report.
-pub fn execute_merge(
-    merge: PreparedMerge,
-    progress: &(dyn Fn(u64) + Sync),
-) -> Result<String, AppError> {
+pub fn execute_merge(merge: PreparedMerge, progress: &Progress<'_>) -> Result<String, AppError> {
+    progress(Event::Start(Phase::Merge { parts: merge.parts }));
     execute_with(merge.run, progress, Some(&merge.totals))
 }

@@ -11,6 +11,7 @@ use crate::analytic::information::InformationError;
 use crate::analytic::scan::{ScanOptions, scan_plan};
 use crate::evaluate::{self, RunError, RunOptions};
 use crate::figures::{self, Inputs};
+use crate::phase::Progress;
 use crate::plan::Plan;
 use crate::report::report_page::{self, ReportContent};
 use crate::report::{self, PendingFolder};
@@ -71,10 +72,7 @@ pub fn prepare(req: &ReportRequest) -> Result<PreparedReport, AppError> {
 type Files = Vec<(String, String, Vec<u8>)>;
 
 /// Runs the plan, writes the folder whole and returns the terminal's closing lines.
-pub fn execute(
-    prepared: PreparedReport,
-    progress: &(dyn Fn(u64) + Sync),
-) -> Result<String, AppError> {
+pub fn execute(prepared: PreparedReport, progress: &Progress<'_>) -> Result<String, AppError> {
     let plan = &prepared.plan;
     let RunResults {
         summaries,

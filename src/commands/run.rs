@@ -6,6 +6,7 @@ use super::AppError;
 use crate::engine::ScenarioSummary;
 use crate::evaluate::{self, RunOptions};
 use crate::output::{CommitSet, Slot};
+use crate::phase::Progress;
 use crate::plan::Plan;
 use crate::report;
 use crate::shard::{self, MergedTallies, Part};
@@ -252,7 +253,7 @@ pub struct RunResults {
 pub fn results(
     plan: &Plan,
     options: RunOptions,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> Result<RunResults, AppError> {
     results_with(plan, options, progress, None)
 }
@@ -262,7 +263,7 @@ pub fn results(
 fn results_with(
     plan: &Plan,
     options: RunOptions,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
     stored: Option<&MergedTallies>,
 ) -> Result<RunResults, AppError> {
     let summaries = evaluate::run_plan_with(plan, options, progress, &|s| {
@@ -292,7 +293,7 @@ fn results_with(
 }
 
 /// Runs a prepared plan, writes the output files whole and returns the terminal report.
-pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<String, AppError> {
+pub fn execute(run: PreparedRun, progress: &Progress<'_>) -> Result<String, AppError> {
     let PreparedRun {
         plan,
         options,
@@ -341,7 +342,7 @@ fn execute_part(
     plan: &Plan,
     out: PartOutput,
     mut outputs: Outputs,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> Result<String, AppError> {
     let file = shard::run_part(plan, out.plan_hash, out.part, progress)?;
     let mut bytes = serde_json::to_vec(&file).map_err(|e| AppError::Internal(e.to_string()))?;
@@ -359,7 +360,7 @@ fn execute_part(
 /// A whole run, or — with `stored` — the merge of its parts: results, outputs, report.
 pub(super) fn execute_with(
     run: PreparedRun,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
     stored: Option<&MergedTallies>,
 ) -> Result<String, AppError> {
     let plan = &run.plan;

@@ -5,6 +5,7 @@
 //! not depend on the thread count or on scheduling. Chunks are processed in blocks of
 //! BLOCK_CHUNKS so memory stays fixed however many replicates are asked for.
 
+use crate::phase::{Event, Progress};
 use crate::simulate::{ReplicateRng, replicate_rng};
 use rayon::prelude::*;
 use std::sync::atomic::{AtomicBool, Ordering};
@@ -71,7 +72,7 @@ pub fn run_chunks<K: Kernel + ?Sized>(
     scenario: u64,
     replicates: u64,
     chunks: &[u64],
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> Vec<K::Tally> {
     let mut out = Vec::with_capacity(chunks.len());
     for block in chunks.chunks(BLOCK_CHUNKS as usize) {
@@ -80,7 +81,7 @@ pub fn run_chunks<K: Kernel + ?Sized>(
             .map(|&chunk| {
                 let tally = run_chunk(kernel, seed, scenario, replicates, chunk);
                 let lo = chunk * CHUNK;
-                progress((lo + CHUNK).min(replicates).saturating_sub(lo));
+                progress(Event::Done((lo + CHUNK).min(replicates).saturating_sub(lo)));
                 tally
             })
             .collect();
@@ -98,7 +99,7 @@ pub fn run_chunks_until<K: Kernel + ?Sized>(
     replicates: u64,
     chunks: &[u64],
     stop: &AtomicBool,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> Vec<(u64, K::Tally)> {
     let done: Vec<Option<(u64, K::Tally)>> = chunks
         .par_iter()
@@ -108,7 +109,7 @@ pub fn run_chunks_until<K: Kernel + ?Sized>(
             }
             let tally = run_chunk(kernel, seed, scenario, replicates, chunk);
             let lo = chunk * CHUNK;
-            progress((lo + CHUNK).min(replicates).saturating_sub(lo));
+            progress(Event::Done((lo + CHUNK).min(replicates).saturating_sub(lo)));
             Some((chunk, tally))
         })
         .collect();
@@ -121,7 +122,7 @@ pub fn run_replicates<K: Kernel + ?Sized>(
     seed: u64,
     scenario: u64,
     replicates: u64,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> K::Tally {
     let chunks = chunk_count(replicates);
     let mut total = kernel.tally();
@@ -133,7 +134,7 @@ pub fn run_replicates<K: Kernel + ?Sized>(
             .map(|chunk| {
                 let tally = run_chunk(kernel, seed, scenario, replicates, chunk);
                 let lo = chunk * CHUNK;
-                progress((lo + CHUNK).min(replicates) - lo);
+                progress(Event::Done((lo + CHUNK).min(replicates) - lo));
                 tally
             })
             .collect();

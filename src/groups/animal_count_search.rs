@@ -23,6 +23,7 @@ use super::effort_search::{Approximate, Candidate, Goals, MAX_ANIMALS, Search};
 use super::grid::{DesignSetup, run_point};
 use super::summary::GroupSummary;
 use crate::engine::Share;
+use crate::phase::Progress;
 
 /// Geometric step between Monte Carlo evaluations before bisection (the trial search's).
 pub const STEP: f64 = 1.3;
@@ -58,7 +59,7 @@ pub struct Confirm<'a, 'b> {
     pub setup: &'a DesignSetup<'b>,
     pub goals: &'a Goals,
     pub cache: Cache,
-    pub progress: &'a (dyn Fn(u64) + Sync),
+    pub progress: &'a Progress<'a>,
 }
 
 impl Confirm<'_, '_> {

@@ -24,6 +24,7 @@ use super::grid::{DesignSetup, per_condition_cap};
 use super::summary::GroupSummary;
 use crate::design::goals::Budget;
 use crate::engine::{Figure, Share};
+use crate::phase::{Event, Phase, Progress};
 use serde::Serialize;
 
 /// Most frontier rows simulated per mode.
@@ -192,7 +193,7 @@ pub fn effort_split(
     setup: &DesignSetup,
     grid: &[u32],
     cache: Cache,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> Result<Result<EffortSplit, String>, GroupError> {
     let plan = setup.plan;
     let Some(budget) = *plan.budget() else {
@@ -215,6 +216,9 @@ pub fn effort_split(
             "no effort split: the design's expected information could not be computed".into(),
         ));
     };
+    progress(Event::Start(Phase::EffortSplit {
+        design: design.name.clone(),
+    }));
     let cap = per_condition_cap(design, plan.animals().as_ref().and_then(|a| a.trial_cap));
     let hi = cap
         .unwrap_or(plan.study().max_trials)

@@ -14,6 +14,7 @@ use super::summary::{GroupSummary, summarise};
 use crate::analytic::trial_grid::fits_design;
 use crate::design::{Design, Response, Route, split_trials};
 use crate::engine::parallel::{Kernel, run_replicates};
+use crate::phase::Progress;
 use crate::plan::Plan;
 
 /// Everything one design fixes for its group studies.
@@ -79,7 +80,7 @@ pub fn run_point(
     trials: u32,
     replicates: u64,
     seed: u64,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> Result<GroupSummary, GroupError> {
     let kernel = point_kernel(setup, animals, trials)?;
     let tally = run_replicates(

@@ -35,6 +35,7 @@ pub use summary::GroupSummary;
 
 use crate::design::goals::Budget;
 use crate::model::LapseSpec;
+use crate::phase::{Event, Phase, Progress};
 use crate::plan::Plan;
 use crate::vocab::RateCorrection;
 use grid::{DesignSetup, grid_trials, run_point};
@@ -189,7 +190,7 @@ pub fn animal_datasets_by_design(plan: &Plan) -> Vec<u64> {
 
 /// Runs the grid of every design and, with a `[budget]`, the effort split; `progress` is told
 /// how many group studies finished.
-pub fn run_groups(plan: &Plan, progress: &(dyn Fn(u64) + Sync)) -> Result<GroupReport, GroupError> {
+pub fn run_groups(plan: &Plan, progress: &Progress<'_>) -> Result<GroupReport, GroupError> {
     run_groups_with(plan, progress, &|_, _, _| None)
 }
 
@@ -198,15 +199,17 @@ pub fn run_groups(plan: &Plan, progress: &(dyn Fn(u64) + Sync)) -> Result<GroupR
 /// The effort split always simulates: it chooses each point from the last.
 pub fn run_groups_with(
     plan: &Plan,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
     stored: &dyn Fn(usize, u32, u32) -> Option<GroupTally>,
 ) -> Result<GroupReport, GroupError> {
     let animals = plan.animals().as_ref().ok_or(GroupError::NoAnimals)?;
     let total = total_group_replicates(plan);
     let done = AtomicU64::new(0);
-    let counted = |k: u64| {
-        done.fetch_add(k, Ordering::Relaxed);
-        progress(k);
+    let counted = |e: Event| {
+        if let Event::Done(k) = e {
+            done.fetch_add(k, Ordering::Relaxed);
+        }
+        progress(e);
     };
     let mut designs = Vec::new();
     for setup in setups(plan)? {
@@ -219,6 +222,9 @@ pub fn run_groups_with(
                 animals.trial_cap.unwrap_or(0)
             ));
         }
+        counted(Event::Start(Phase::GroupsGrid {
+            design: design.name.clone(),
+        }));
         let mut cells = Vec::new();
         for &n_animals in &animals.counts {
             for &n in &trials {
@@ -288,7 +294,7 @@ pub fn run_groups_with(
     // Finish the bar: the effort split may need fewer studies than its upper bound.
     let left = total.saturating_sub(done.load(Ordering::Relaxed));
     if left > 0 {
-        progress(left);
+        progress(Event::Skipped(left));
     }
     Ok(GroupReport {
         population: Population::from_animals(animals),

@@ -21,6 +21,7 @@ pub mod output_folder;
 pub mod page;
 pub mod page_html;
 pub mod page_markdown;
+pub mod phase_text;
 pub mod pilot_plan;
 pub mod pilot_text;
 pub mod reading;

@@ -19,6 +19,7 @@ use crate::design::{Design, RecordKind, split_trials};
 use crate::engine::Contrast;
 use crate::engine::{ScenarioSummary, Share};
 use crate::evaluate::{RunError, RunOptions, run_scenario};
+use crate::phase::{Event, Phase, Progress};
 use crate::plan::{Plan, Scenario};
 use crate::power::asymptotic::{self, AsymptoticPoint};
 use crate::power::contrast;
@@ -154,7 +155,7 @@ fn evaluate(
     d: usize,
     trials: u32,
     targets: &[Target],
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> Result<Vec<TargetValue>, RunError> {
     let scenario = Scenario {
         id: SEARCH_STREAM_BASE + d as u64,
@@ -232,7 +233,7 @@ fn value(s: &ScenarioSummary, t: &Target) -> TargetValue {
 pub fn search_design(
     plan: &Plan,
     d: usize,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> Result<SearchResult, RunError> {
     let design = &plan.designs()[d];
     let (targets, contrasts) = targets_for(plan, design);
@@ -281,6 +282,11 @@ pub fn search_design(
     let mut evaluations = 0;
     let mut eval = |n: u32| -> Result<(bool, Vec<TargetValue>), RunError> {
         evaluations += 1;
+        progress(Event::Start(Phase::SearchRound {
+            design: design.name.clone(),
+            round: evaluations,
+            trials: n,
+        }));
         let v = evaluate(plan, d, n, &targets, progress)?;
         Ok((v.iter().all(|x| x.met), v))
     };
@@ -450,10 +456,7 @@ fn not_reached(
 }
 
 /// Searches every design of the plan.
-pub fn search_plan(
-    plan: &Plan,
-    progress: &(dyn Fn(u64) + Sync),
-) -> Result<Vec<SearchResult>, RunError> {
+pub fn search_plan(plan: &Plan, progress: &Progress<'_>) -> Result<Vec<SearchResult>, RunError> {
     (0..plan.designs().len())
         .map(|d| search_design(plan, d, progress))
         .collect()

@@ -15,6 +15,7 @@ use crate::engine::parallel::{BLOCK_CHUNKS, CHUNK, chunk_count, run_chunks_until
 use crate::evaluate::scenario_kernel;
 use crate::groups::grid::{point_kernel, stream_key};
 use crate::groups::setups;
+use crate::phase::{Event, Phase, Progress};
 use crate::plan::Plan;
 use std::collections::HashSet;
 use std::io::Write;
@@ -151,7 +152,7 @@ pub fn run_checkpointed(
     plan_hash: String,
     path: &Path,
     resumed: Option<PartFile>,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> Result<Outcome, ShardError> {
     let study = plan.study();
     let (seed, experiments) = (study.seed, study.experiments);
@@ -161,6 +162,9 @@ pub fn run_checkpointed(
     } else {
         Vec::new()
     };
+    progress(Event::Start(Phase::Checkpointed {
+        resumed: resumed.is_some(),
+    }));
     let mut file = resumed.unwrap_or_else(|| PartFile::new(plan_hash, seed, experiments, 1, 1));
     let per_point = chunk_count(experiments);
     let total = points.len() * per_point as usize;

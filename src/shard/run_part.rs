@@ -8,6 +8,7 @@ use crate::engine::parallel::run_chunks;
 use crate::evaluate::scenario_kernel;
 use crate::groups::grid::{point_kernel, stream_key};
 use crate::groups::setups;
+use crate::phase::{Event, Phase, Progress};
 use crate::plan::Plan;
 
 /// Replicates part `part` of the plan simulates (for a progress bar).
@@ -31,7 +32,7 @@ pub fn run_part(
     plan: &Plan,
     plan_hash: String,
     part: Part,
-    progress: &(dyn Fn(u64) + Sync),
+    progress: &Progress<'_>,
 ) -> Result<PartFile, ShardError> {
     let study = plan.study();
     let (seed, experiments) = (study.seed, study.experiments);
@@ -42,6 +43,10 @@ pub fn run_part(
         Vec::new()
     };
     let mut file = PartFile::new(plan_hash, seed, experiments, part.index, part.count);
+    progress(Event::Start(Phase::Part {
+        index: part.index,
+        of: part.count,
+    }));
     for (point, chunks) in dealt_chunks(&points, experiments, |g| part.holds(g)) {
         match point {
             Point::Scenario(s) => {
