@@ -104,6 +104,10 @@ impl Renderer {
     }
 }
 
+/// The bar's layout: the running phase's label (cut to 32 columns), the bar over the whole
+/// run, and an ETA from the rate so far.
+const TEMPLATE: &str = "{msg:<32!} {bar:30} {percent:>3}%  {human_pos}/{human_len}  eta {eta}";
+
 /// A bar over `total` work units; hidden when `quiet`, when stderr is not a terminal,
 /// or when there is nothing to count.
 pub fn bar(total: u64, quiet: bool) -> ProgressBar {
@@ -111,11 +115,20 @@ pub fn bar(total: u64, quiet: bool) -> ProgressBar {
         return ProgressBar::hidden();
     }
     let bar = ProgressBar::with_draw_target(Some(total), ProgressDrawTarget::stderr());
-    if let Ok(style) = ProgressStyle::with_template(
-        "{msg:<32!} {bar:30} {percent:>3}%  {human_pos}/{human_len}  eta {eta}",
-    ) {
+    if let Ok(style) = ProgressStyle::with_template(TEMPLATE) {
         bar.set_style(style);
     }
     bar.set_message("simulating");
     bar
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_template_is_one_indicatif_accepts() {
+        // A rejected template would silently fall back to indicatif's default style.
+        assert!(ProgressStyle::with_template(TEMPLATE).is_ok());
+    }
 }
