@@ -47,6 +47,9 @@ pub enum Event {
     Start(Phase),
     /// This many work units finished.
     Done(u64),
+    /// The phase just started will do this many units, which the bar's total may not hold
+    /// (the search's rounds are not known before it runs): the bar grows to fit them.
+    Planned(u64),
     /// Work counted in the bar's total that turned out not to be needed (an upper bound
     /// not reached); moves the bar, is no work done.
     Skipped(u64),

@@ -65,6 +65,12 @@ impl Renderer {
             Kind::Bar(bar) => match event {
                 Event::Start(phase) => bar.set_message(phase_text::bar_label(&phase)),
                 Event::Done(n) | Event::Skipped(n) => bar.inc(n),
+                Event::Planned(n) => {
+                    let needed = bar.position().saturating_add(n);
+                    if bar.length().is_some_and(|len| len < needed) {
+                        bar.set_length(needed);
+                    }
+                }
             },
             Kind::Log(running) => {
                 let mut running = running.lock().unwrap_or_else(|e| e.into_inner());
@@ -84,7 +90,7 @@ impl Renderer {
                             r.units += n;
                         }
                     }
-                    Event::Skipped(_) => {}
+                    Event::Planned(_) | Event::Skipped(_) => {}
                 }
             }
         }
@@ -104,9 +110,9 @@ impl Renderer {
     }
 }
 
-/// The bar's layout: the running phase's label (cut to 32 columns), the bar over the whole
+/// The bar's layout: the running phase's label (cut to 40 columns), the bar over the whole
 /// run, and an ETA from the rate so far.
-const TEMPLATE: &str = "{msg:<32!} {bar:30} {percent:>3}%  {human_pos}/{human_len}  eta {eta}";
+const TEMPLATE: &str = "{msg:<40!} {bar:24} {percent:>3}%  {human_pos}/{human_len}  eta {eta}";
 
 /// A bar over `total` work units; hidden when `quiet`, when stderr is not a terminal,
 /// or when there is nothing to count.

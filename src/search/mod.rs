@@ -287,6 +287,7 @@ pub fn search_design(
             round: evaluations,
             trials: n,
         }));
+        progress(Event::Planned(plan.study().experiments));
         let v = evaluate(plan, d, n, &targets, progress)?;
         Ok((v.iter().all(|x| x.met), v))
     };
