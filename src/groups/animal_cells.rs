@@ -66,9 +66,13 @@ impl CellsAnimals {
     /// The true condition specs of an animal with this deviation.
     pub fn animal_specs(&self, deviation: &Deviation) -> Vec<ConditionSpec> {
         let mut specs = self.truth.clone();
-        for s in &mut specs {
-            s.values.d_prime = deviation.d_prime_at(s.values.d_prime);
-            s.values.criterion = deviation.criterion_at(s.values.criterion);
+        for (j, s) in specs.iter_mut().enumerate() {
+            s.values.d_prime = deviation.d_prime_in(j, s.values.d_prime);
+            s.values.criterion = deviation.criterion_in(j, s.values.criterion);
+            s.values.sigma = deviation.sigma_at(s.values.sigma);
+            if let (Some(l), Some(rate)) = (s.lapse.as_mut(), deviation.lapse_rate) {
+                l.rate = rate;
+            }
         }
         specs
     }
@@ -193,6 +197,7 @@ mod tests {
         let dev = Deviation {
             d_prime: 0.2,
             criterion: -0.3,
+            ..Deviation::default()
         };
         let model = ObservationModel::new(a.animal_specs(&dev)).unwrap();
         let values = model.natural(&model.hypothesised_theta()).unwrap();
@@ -230,6 +235,7 @@ mod tests {
         let dev = Deviation {
             d_prime: -0.1,
             criterion: 0.2,
+            ..Deviation::default()
         };
         let model = ObservationModel::new(a.animal_specs(&dev)).unwrap();
         let blocks = cell_probabilities(&model, &model.hypothesised_theta(), Order::First).unwrap();

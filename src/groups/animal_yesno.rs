@@ -64,7 +64,8 @@ impl YesNoAnimals {
         Observer {
             d_prime: deviation.d_prime_at(self.observer.d_prime),
             criterion: deviation.criterion_at(self.observer.criterion),
-            ..self.observer
+            sigma: deviation.sigma_at(self.observer.sigma),
+            lapse: deviation.lapse_at(self.observer.lapse),
         }
     }
 }

@@ -101,11 +101,25 @@ impl Approximation {
     }
 
     /// Between-animal variance of a test's per-animal contrast.
+    /// With random slopes (applied to every condition after the first), a contrast between
+    /// the first condition and another varies with the slope's SD, and a criterion in a later
+    /// condition with Var(δc + u) = s_c² + s_u² + 2·r·s_c·s_u.
     pub fn between(&self, test: &GroupTest) -> f64 {
+        let p = &self.population;
+        let s = &p.slopes;
+        let one_is_first = |a: usize, b: usize| (a == 0) != (b == 0);
         match test.contrast {
-            Contrast::Criterion { .. } | Contrast::GroupDifference { .. } => {
-                self.population.sd_criterion.powi(2)
+            Contrast::Criterion { condition } if condition > 0 => {
+                p.sd_criterion.powi(2)
+                    + s.sd_criterion_shift.powi(2)
+                    + 2.0 * s.correlation_criterion_shift * p.sd_criterion * s.sd_criterion_shift
             }
+            Contrast::Criterion { .. } | Contrast::GroupDifference { .. } => p.sd_criterion.powi(2),
+            Contrast::CriterionShift { a, b } if one_is_first(a, b) => s.sd_criterion_shift.powi(2),
+            Contrast::SensitivityDifference { a, b } if one_is_first(a, b) => {
+                s.sd_d_prime_change.powi(2)
+            }
+            Contrast::LnSigma => s.sd_ln_sigma.powi(2),
             _ => 0.0,
         }
     }

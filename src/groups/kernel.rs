@@ -344,6 +344,7 @@ mod tests {
             sd_d_prime: 0.3,
             sd_criterion: 0.35,
             correlation: -0.3,
+            ..Population::identical()
         };
         let kernel = GroupKernel::new(path(), population, 9, Vec::new(), 0.05, 0.95, (-0.2, 1.2));
         for r in 0..20 {

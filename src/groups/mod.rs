@@ -113,7 +113,8 @@ pub struct GroupReport {
 
 fn setups(plan: &Plan) -> Result<Vec<DesignSetup<'_>>, GroupError> {
     let animals = plan.animals().as_ref().ok_or(GroupError::NoAnimals)?;
-    let population = Population::from_animals(animals);
+    let population = Population::from_animals(animals)
+        .with_lapse_rate(plan.observer().lapse.map_or(0.0, |l| l.rate));
     Ok(plan
         .designs()
         .iter()
