@@ -207,6 +207,28 @@ mod tests {
         assert!((values[1].criterion + 0.3).abs() < 1e-12);
     }
 
+    // A random slope moves every condition after the first by the animal's own shift and
+    // change; σ and the lapse rate are the animal's in every condition.
+    #[test]
+    fn a_slope_moves_only_the_later_conditions() {
+        let a = animals(400, 1.0);
+        let dev = Deviation {
+            criterion: 0.1,
+            criterion_shift: -0.25,
+            d_prime_change: 0.3,
+            ln_sigma: 0.2,
+            ..Deviation::default()
+        };
+        let specs = a.animal_specs(&dev);
+        assert!((specs[0].values.criterion - 0.6).abs() < 1e-12);
+        assert!((specs[1].values.criterion - (0.0 + 0.1 - 0.25)).abs() < 1e-12);
+        assert!((specs[0].values.d_prime - 1.5).abs() < 1e-12);
+        assert!((specs[1].values.d_prime - 1.8).abs() < 1e-12);
+        for s in &specs {
+            assert!((s.values.sigma - 0.2f64.exp()).abs() < 1e-12);
+        }
+    }
+
     // The data come from the animal's own σ (the engine's truth_specs) even though a yes/no
     // analysis holds σ at 1: with present evidence x ~ N(d′, σ²) and the criterion at
     // k = c + d′/2 (midpoint convention), P("yes" | present) = P(x > k) = Φ((d′ − k)/σ).

@@ -208,6 +208,28 @@ mod tests {
         assert!((f - fa).abs() < 6.0 * 0.00056, "{f} vs {fa}");
     }
 
+    // An animal's own lapse rate and σ replace the plan's; its guessing rate stays.
+    #[test]
+    fn an_animal_carries_its_own_lapse_rate_and_sigma() {
+        let a = animals(
+            Some(LapseSpec {
+                rate: 0.1,
+                guess_yes: 0.7,
+            }),
+            RateCorrection::LogLinear,
+        );
+        let dev = Deviation {
+            ln_sigma: 0.5,
+            lapse_rate: Some(0.25),
+            ..Deviation::default()
+        };
+        let o = a.animal(&dev);
+        assert_eq!(o.lapse.unwrap().rate, 0.25);
+        assert_eq!(o.lapse.unwrap().guess_yes, 0.7);
+        assert!((o.sigma - 0.5f64.exp()).abs() < 1e-12);
+        assert_eq!(a.animal(&Deviation::default()), a.observer);
+    }
+
     // Worked example computed with SciPy 1.17 (norm.ppf of the half-n rates): 20/20 hits,
     // 5/25 false alarms → d′ = 2.801585, c = −0.559171.
     #[test]
