@@ -1,4 +1,4 @@
-//! Groups of animals: between-animal variation, group-level inference, lapses, and how to
+//! Groups of animals: between-animal variation (intercepts, random slopes, σ, lapse rate), group-level inference, lapses, and how to
 //! split effort between animals and trials.
 //!
 //! A plan with an `[animals]` table describes a population: every animal's d′ and criterion

@@ -1,8 +1,9 @@
 //! From the raw file to a trusted [`Plan`]: every range and consistency check, once.
 //!
 //! One file per plan section: `study`, `observer`, `design` (with `conditions` and the
-//! rating `scale`) and `goals` (hypotheses, targets, animals, budget). This file holds the
-//! error builder they share and the order in which the sections are checked.
+//! rating `scale`), `goals` (hypotheses, targets, animals, budget) and `animal_slopes` (the
+//! `[animals]` slope, σ and lapse SDs, checked against the observer's lapse rate). This file
+//! holds the error builder they share and the order in which the sections are checked.
 
 mod animal_slopes;
 mod conditions;
