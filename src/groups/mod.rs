@@ -1,5 +1,5 @@
-//! Groups of animals: between-animal variation (intercepts, random slopes, σ, lapse rate), group-level inference, lapses, and how to
-//! split effort between animals and trials.
+//! Groups of animals: between-animal variation (intercepts, random slopes, σ, lapse rate),
+//! group-level inference, lapses, and how to split effort between animals and trials.
 //!
 //! A plan with an `[animals]` table describes a population: every animal's d′ and criterion
 //! depart from the plan's by a bivariate-normal deviation ([`population`]). Each simulated
