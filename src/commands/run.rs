@@ -5,7 +5,7 @@
 use super::AppError;
 use crate::engine::ScenarioSummary;
 use crate::evaluate::{self, RunOptions};
-use crate::output::{CommitSet, Slot};
+use crate::output::{CommitSet, OutputSlot};
 use crate::plan::Plan;
 use crate::report;
 use crate::shard::{self, MergedTallies, Part};
@@ -46,7 +46,7 @@ struct CheckpointRun {
 struct PartOutput {
     part: Part,
     plan_hash: String,
-    slot: Slot,
+    slot: OutputSlot,
 }
 
 /// A loaded plan with its claimed output files, ready to run.
@@ -63,8 +63,8 @@ pub struct PreparedRun {
 /// The claimed output files of a run, committed together.
 pub(super) struct Outputs {
     pub(super) set: CommitSet,
-    pub(super) csv: Option<Slot>,
-    pub(super) json: Option<Slot>,
+    pub(super) csv: Option<OutputSlot>,
+    pub(super) json: Option<OutputSlot>,
 }
 
 impl PreparedRun {
@@ -154,7 +154,7 @@ pub(super) fn claim_tables(
     set: &mut CommitSet,
     csv: Option<&Path>,
     json: Option<&Path>,
-) -> Result<(Option<Slot>, Option<Slot>), AppError> {
+) -> Result<(Option<OutputSlot>, Option<OutputSlot>), AppError> {
     let csv = csv.map(|p| set.claim("--csv", p)).transpose()?;
     let json = json.map(|p| set.claim("--json", p)).transpose()?;
     Ok((csv, json))
@@ -322,17 +322,19 @@ pub fn execute(run: PreparedRun, progress: &(dyn Fn(u64) + Sync)) -> Result<Stri
         resume_hint,
     } = checkpoint;
     match shard::checkpoint::run_checkpointed(&run.plan, plan_hash, &path, resumed, progress)? {
-        shard::checkpoint::Outcome::Done(totals) => {
+        shard::checkpoint::CheckpointOutcome::Done(totals) => {
             let text = execute_with(run, progress, Some(&totals))?;
             shard::checkpoint::remove_checkpoint(&path);
             Ok(text)
         }
-        shard::checkpoint::Outcome::Interrupted { saved, total } => Err(AppError::Interrupted {
-            path,
-            saved,
-            total,
-            resume: resume_hint,
-        }),
+        shard::checkpoint::CheckpointOutcome::Interrupted { saved, total } => {
+            Err(AppError::Interrupted {
+                path,
+                saved,
+                total,
+                resume: resume_hint,
+            })
+        }
     }
 }
 

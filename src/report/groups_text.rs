@@ -6,7 +6,7 @@ use super::CAUTION;
 use super::style::{new_table, right_align};
 use crate::design::goals::TestKind;
 use crate::engine::Share;
-use crate::groups::summary::TestSummary;
+use crate::groups::summary::GroupTestSummary;
 use crate::groups::{DesignGroups, GridCell, GroupReport, GroupTest};
 use crate::plan::Plan;
 use crate::vocab::Sided;
@@ -90,22 +90,24 @@ fn sign(sided: Sided) -> &'static str {
 
 /// What a test asks, in words.
 pub fn describe(test: &GroupTest) -> String {
-    use crate::groups::hypotheses::Contrast;
+    use crate::groups::hypotheses::GroupContrast;
     let s = sign(test.sided);
     match test.contrast {
-        Contrast::Criterion { .. } if test.kind == TestKind::IdealCriterion => {
+        GroupContrast::Criterion { .. } if test.kind == TestKind::IdealCriterion => {
             format!(
                 "mean criterion {s} the ideal observer's ({:+.2})",
                 test.null
             )
         }
-        Contrast::Criterion { .. } => format!("mean criterion {s} {}", test.null),
-        Contrast::CriterionShift { .. } => format!("mean criterion shift between conditions {s} 0"),
-        Contrast::SensitivityDifference { .. } => {
+        GroupContrast::Criterion { .. } => format!("mean criterion {s} {}", test.null),
+        GroupContrast::CriterionShift { .. } => {
+            format!("mean criterion shift between conditions {s} 0")
+        }
+        GroupContrast::SensitivityDifference { .. } => {
             format!("mean d′ difference between conditions {s} 0")
         }
-        Contrast::LnSigma => format!("mean ln σ {s} 0 (σ {s} 1)"),
-        Contrast::GroupDifference { shift, .. } => format!(
+        GroupContrast::LnSigma => format!("mean ln σ {s} 0 (σ {s} 1)"),
+        GroupContrast::GroupDifference { shift, .. } => format!(
             "second population's mean criterion − the first's {s} 0 (half the animals from each; true shift {shift:+.2})"
         ),
     }
@@ -176,13 +178,13 @@ fn design_block(out: &mut String, r: &GroupReport, d: &DesignGroups) {
                 format!("{:.2} · {:.2}", t.pooled.value, t.pooled_false.value)
             })
         );
-        let worst = |f: fn(&TestSummary) -> f64| {
+        let worst = |f: fn(&GroupTestSummary) -> f64| {
             d.cells
                 .iter()
                 .map(|c| f(&c.summary.tests[i]))
                 .fold(f64::NAN, f64::max)
         };
-        let best = |f: fn(&TestSummary) -> f64| {
+        let best = |f: fn(&GroupTestSummary) -> f64| {
             d.cells
                 .iter()
                 .map(|c| f(&c.summary.tests[i]))
