@@ -216,7 +216,12 @@ fn design_block(out: &mut String, r: &GroupReport, d: &DesignGroups) {
         "{}",
         grid_table(d, |c| {
             let s = &c.summary.criterion;
-            format!("{:.3} · {:.1}%", s.mean_se.value, 100.0 * s.coverage.value)
+            // A cell where no study had two usable animals has nothing to show.
+            if s.mean_se.value.is_finite() && s.coverage.value.is_finite() {
+                format!("{:.3} · {:.1}%", s.mean_se.value, 100.0 * s.coverage.value)
+            } else {
+                "– · –".to_string()
+            }
         })
     );
     for line in super::coverage_notes::group_notes(r, d) {
@@ -250,6 +255,17 @@ fn precision_reading(out: &mut String, r: &GroupReport, d: &DesignGroups) {
     let (Some(small), Some(large)) = (d.cells.first(), d.cells.last()) else {
         return;
     };
+    let usable = |c: &crate::groups::GridCell| c.summary.criterion.half_width.value.is_finite();
+    if !d.cells.iter().any(usable) {
+        let _ = writeln!(
+            out,
+            "Reading: {}: no usable group estimate at any count — no study had two animals with a fit \
+             (see \"Left out\"), so the group mean criterion cannot be estimated with this record; \
+             change the record (a full record, or a known or censused base rate) rather than the numbers.",
+            d.design
+        );
+        return;
+    }
     let level = 100.0 * r.confidence;
     let hw = |x: f64| crate::report::format::number(x, 2);
     let one = d.cells.len() == 1;
