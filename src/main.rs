@@ -37,6 +37,10 @@ enum Command {
         /// Also write everything as JSON, with the resolved plan, seed and version.
         #[arg(long, value_name = "FILE")]
         json: Option<PathBuf>,
+        /// Also write every table as its own CSV into the existing folder DIR: estimates.csv
+        /// (as --csv), power.csv, search.csv, group_grid.csv, effort.csv (docs/outputs.md).
+        #[arg(long, value_name = "DIR")]
+        tables: Option<PathBuf>,
         /// Enumerate every outcome of yes/no designs instead of simulating (small counts).
         #[arg(long)]
         exact: bool,
@@ -78,6 +82,10 @@ enum Command {
         /// Also write everything as JSON, with the resolved plan, seed and version.
         #[arg(long, value_name = "FILE")]
         json: Option<PathBuf>,
+        /// Also write every table as its own CSV into the existing folder DIR: estimates.csv
+        /// (as --csv), power.csv, search.csv, group_grid.csv, effort.csv (docs/outputs.md).
+        #[arg(long, value_name = "DIR")]
+        tables: Option<PathBuf>,
         /// No progress bar.
         #[arg(long, short)]
         quiet: bool,
@@ -244,6 +252,7 @@ fn main() -> ExitCode {
             plan,
             csv,
             json,
+            tables,
             exact,
             experiments,
             part,
@@ -257,6 +266,7 @@ fn main() -> ExitCode {
                 plan,
                 csv,
                 json,
+                tables,
                 exact,
                 experiments,
                 allow_long_run,
@@ -272,6 +282,7 @@ fn main() -> ExitCode {
             parts,
             csv,
             json,
+            tables,
             quiet,
         } => merge(
             app::merge::MergeRequest {
@@ -279,6 +290,7 @@ fn main() -> ExitCode {
                 parts,
                 csv,
                 json,
+                tables,
             },
             quiet,
         ),

@@ -33,6 +33,18 @@ impl TestKind {
         "group-difference",
     ];
 
+    /// The plan's spelling of the kind (one of [`Self::NAMES`]).
+    pub fn name(self) -> &'static str {
+        match self {
+            Self::Bias => "bias",
+            Self::IdealCriterion => "ideal-criterion",
+            Self::CriterionShift => "criterion-shift",
+            Self::SensitivityDifference => "sensitivity-difference",
+            Self::UnequalVariance => "unequal-variance",
+            Self::GroupDifference => "group-difference",
+        }
+    }
+
     pub fn from_name(name: &str) -> Option<Self> {
         Some(match name {
             "bias" => Self::Bias,
