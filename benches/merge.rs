@@ -57,6 +57,7 @@ fn merge(c: &mut Criterion) {
                 parts: paths.clone(),
                 csv: None,
                 json: None,
+                tables: None,
             };
             group.bench_function(
                 "vigil merge of 100 parts of the colony plan (with its effort split), 1000 experiments",

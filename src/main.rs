@@ -60,6 +60,10 @@ enum Command {
         /// Also write everything as JSON, with the resolved plan, seed and version.
         #[arg(long, value_name = "FILE")]
         json: Option<PathBuf>,
+        /// Also write every table as its own CSV into the existing folder DIR: estimates.csv
+        /// (as --csv), power.csv, search.csv, group_grid.csv, effort.csv (docs/outputs.md).
+        #[arg(long, value_name = "DIR")]
+        tables: Option<PathBuf>,
         /// Enumerate every outcome of yes/no designs instead of simulating (small counts).
         #[arg(long)]
         exact: bool,
@@ -100,6 +104,10 @@ enum Command {
         /// Also write everything as JSON, with the resolved plan, seed and version.
         #[arg(long, value_name = "FILE")]
         json: Option<PathBuf>,
+        /// Also write every table as its own CSV into the existing folder DIR: estimates.csv
+        /// (as --csv), power.csv, search.csv, group_grid.csv, effort.csv (docs/outputs.md).
+        #[arg(long, value_name = "DIR")]
+        tables: Option<PathBuf>,
         #[command(flatten)]
         progress: ProgressArgs,
     },
@@ -264,6 +272,7 @@ fn main() -> ExitCode {
             plan,
             csv,
             json,
+            tables,
             exact,
             experiments,
             part,
@@ -277,6 +286,7 @@ fn main() -> ExitCode {
                 plan,
                 csv,
                 json,
+                tables,
                 exact,
                 experiments,
                 allow_long_run,
@@ -292,6 +302,7 @@ fn main() -> ExitCode {
             parts,
             csv,
             json,
+            tables,
             progress,
         } => merge(
             app::merge::MergeRequest {
@@ -299,6 +310,7 @@ fn main() -> ExitCode {
                 parts,
                 csv,
                 json,
+                tables,
             },
             progress,
         ),

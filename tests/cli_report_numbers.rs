@@ -136,3 +136,24 @@ fn ideal_refuses_an_optimum_that_overflows() {
         assert_tidy(&msg);
     }
 }
+
+/// Found by the long mutation campaign: a group study of a design that no animal can be fitted
+/// on (error totals with an unknown base rate) printed "NaN · NaN%" in its grid and "±–" in
+/// its reading. The grid now shows "–" and the reading says why.
+#[test]
+fn a_group_grid_without_usable_animals_says_so() {
+    let dir = plan(&format!(
+        "{HEAD}[observer]\nd_prime = 1.6\ncriterion = -0.3\n\
+         [[design]]\nname = \"errors, base rate unknown\"\npresence = 0.3\ntrials = [50]\n\
+         record = \"error-totals\"\nbase_rate = \"unknown\"\n\
+         [animals]\ncounts = [4]\n"
+    ));
+    let out = vigil(dir.path(), &["run", "plan.toml", "-q"]);
+    assert_eq!(out.status.code(), Some(0));
+    let text = stdout(&out);
+    assert_tidy(&text);
+    assert!(
+        text.contains("no usable group estimate at any count"),
+        "{text}"
+    );
+}

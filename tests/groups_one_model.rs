@@ -52,14 +52,26 @@ const ANIMALS: [Deviation; 3] = [
     Deviation {
         d_prime: 0.0,
         criterion: 0.0,
+        criterion_shift: 0.0,
+        d_prime_change: 0.0,
+        ln_sigma: 0.0,
+        lapse_rate: None,
     },
     Deviation {
         d_prime: 0.4,
         criterion: -0.35,
+        criterion_shift: 0.0,
+        d_prime_change: 0.0,
+        ln_sigma: 0.0,
+        lapse_rate: None,
     },
     Deviation {
         d_prime: -0.25,
         criterion: 0.5,
+        criterion_shift: 0.0,
+        d_prime_change: 0.0,
+        ln_sigma: 0.0,
+        lapse_rate: None,
     },
 ];
 

@@ -6,7 +6,7 @@
 use serde_json::Value;
 use std::path::Path;
 use vigil::pilot::read::parse;
-use vigil::pilot::{FitSettings, PopulationSettings, analyse};
+use vigil::pilot::{PilotFitSettings, PopulationSettings, analyse};
 use vigil::vocab::RateCorrection;
 
 mod common;
@@ -63,7 +63,7 @@ fn moment_estimates_match_numpy_scipy() {
     for case in &cases {
         let label = case["label"].as_str().unwrap();
         let data = parse(Path::new("golden.csv"), csv_of(case).as_bytes(), 2).unwrap();
-        let settings = FitSettings {
+        let settings = PilotFitSettings {
             correction: RateCorrection::LogLinear,
             boundary: 1,
         };

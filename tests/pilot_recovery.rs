@@ -14,7 +14,7 @@ use rand_xoshiro::Xoshiro256PlusPlus;
 use std::path::PathBuf;
 use vigil::pilot::population::PopulationFit;
 use vigil::pilot::read::{CountTable, PilotAnimal, PilotData};
-use vigil::pilot::{FitSettings, PopulationSettings, analyse};
+use vigil::pilot::{PilotFitSettings, PopulationSettings, analyse};
 use vigil::vocab::RateCorrection;
 
 /// A population of animals and the pilot design.
@@ -64,7 +64,7 @@ fn simulate(t: Truth, rng: &mut Xoshiro256PlusPlus) -> PilotData {
 }
 
 fn fit(data: PilotData, resamples: usize) -> PopulationFit {
-    let settings = FitSettings {
+    let settings = PilotFitSettings {
         correction: RateCorrection::LogLinear,
         boundary: 1,
     };

@@ -133,9 +133,19 @@ fn report_folder_holds_a_self_contained_page_and_every_file() {
         "results.json",
         "plan.toml",
         ".vigil-report",
+        "tables/estimates.csv",
+        "tables/power.csv",
+        "tables/search.csv",
+        "tables/group_grid.csv",
+        "tables/effort.csv",
     ] {
         assert!(rep.join(f).is_file(), "{f} missing");
     }
+    // The folder's estimates table is the bytes of its results.csv.
+    assert_eq!(
+        std::fs::read(rep.join("tables/estimates.csv")).unwrap(),
+        std::fs::read(rep.join("results.csv")).unwrap()
+    );
     let figures: Vec<_> = std::fs::read_dir(rep.join("figures")).unwrap().collect();
     assert!(figures.len() >= 6, "{} figures", figures.len());
     let html = std::fs::read_to_string(rep.join("index.html")).unwrap();

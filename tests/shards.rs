@@ -294,7 +294,7 @@ fn part_options_are_checked_before_any_work() {
         (&["--part-file", "p.json"], "--part-file needs --part"),
         (
             &["--part", "1/4", "--part-file", "p.json", "--json", "x.json"],
-            "--csv and --json are written by `vigil merge",
+            "--csv, --json and --tables are written by `vigil merge",
         ),
     ];
     for (extra, expected) in cases {

@@ -2,7 +2,9 @@
 //! whole run (terminal, CSV, JSON), byte for byte, after checking every part.
 
 use super::AppError;
-use super::run::{Outputs, PreparedRun, claim_tables, execute_with, plan_file_hash};
+use super::run::{
+    Outputs, PreparedRun, claim_table_folder, claim_tables, execute_with, plan_file_hash,
+};
 use crate::evaluate::RunOptions;
 use crate::output::CommitSet;
 use crate::phase::{Event, Phase, Progress};
@@ -19,6 +21,8 @@ pub struct MergeRequest {
     pub parts: Vec<PathBuf>,
     pub csv: Option<PathBuf>,
     pub json: Option<PathBuf>,
+    /// Every table as its own CSV into this existing folder (as `run --tables`).
+    pub tables: Option<PathBuf>,
 }
 
 /// Checked, merged parts with their claimed outputs, ready to finish.
@@ -57,8 +61,14 @@ pub fn prepare_merge(req: &MergeRequest) -> Result<PreparedMerge, AppError> {
         set.input("part", part);
     }
     let (csv, json) = claim_tables(&mut set, req.csv.as_deref(), req.json.as_deref())?;
+    let tables = claim_table_folder(&mut set, req.tables.as_deref())?;
     let (plan, totals) = shard::merge_parts(&plan, &req.plan, &hash, &req.parts)?;
-    let outputs = Outputs { set, csv, json };
+    let outputs = Outputs {
+        set,
+        csv,
+        json,
+        tables,
+    };
     let run = PreparedRun::from_parts(plan, RunOptions::default(), outputs);
     Ok(PreparedMerge {
         run,

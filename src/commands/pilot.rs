@@ -3,7 +3,7 @@
 
 use super::AppError;
 use crate::output::CommitSet;
-use crate::pilot::{self, FitSettings, PilotError, PopulationSettings};
+use crate::pilot::{self, PilotError, PilotFitSettings, PopulationSettings};
 use crate::plan::Plan;
 use crate::report::{pilot_plan, pilot_text};
 use crate::vocab::RateCorrection;
@@ -58,7 +58,7 @@ pub fn pilot(req: &PilotRequest) -> Result<String, AppError> {
         .map(|p| set.claim("--plan-out", p))
         .transpose()?;
     let data = pilot::read(&req.csv, k)?;
-    let settings = FitSettings {
+    let settings = PilotFitSettings {
         correction,
         boundary,
     };

@@ -94,7 +94,14 @@ pub fn execute(prepared: PreparedReport, progress: &Progress<'_>) -> Result<Stri
     let json = report::json_out::render(plan, &summaries, &searches, groups.as_ref(), &advice)
         .map_err(|e| internal(&e))?;
     let justification = report::justification::paragraphs(plan, &searches, groups.as_ref());
-    let others: Files = vec![
+    let tables = report::tables::render(&report::tables::TableInputs {
+        plan,
+        summaries: &summaries,
+        searches: &searches,
+        groups: groups.as_ref(),
+    })
+    .map_err(|e| internal(&e))?;
+    let mut others: Files = vec![
         (
             "report.md".into(),
             "this page as Markdown, for pasting into a proposal".into(),
@@ -121,6 +128,13 @@ pub fn execute(prepared: PreparedReport, progress: &Progress<'_>) -> Result<Stri
             prepared.plan_text.clone().into_bytes(),
         ),
     ];
+    others.extend(tables.into_iter().map(|(name, bytes)| {
+        (
+            format!("{}/{name}", report::tables::FOLDER),
+            report::tables::describe(name).to_string(),
+            bytes,
+        )
+    }));
     let listed: Vec<(String, String)> = others
         .iter()
         .map(|(name, what, _)| (name.clone(), what.clone()))

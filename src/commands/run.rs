@@ -5,7 +5,7 @@
 use super::AppError;
 use crate::engine::ScenarioSummary;
 use crate::evaluate::{self, RunOptions};
-use crate::output::{CommitSet, Slot};
+use crate::output::{CommitSet, OutputSlot};
 use crate::phase::Progress;
 use crate::plan::Plan;
 use crate::report;
@@ -19,6 +19,8 @@ pub struct RunRequest {
     pub plan: PathBuf,
     pub csv: Option<PathBuf>,
     pub json: Option<PathBuf>,
+    /// Also write every table as its own CSV into this existing folder (`--tables`).
+    pub tables: Option<PathBuf>,
     pub exact: bool,
     /// Overrides the plan's number of experiments (quick looks, tests).
     pub experiments: Option<u64>,
@@ -47,7 +49,7 @@ struct CheckpointRun {
 struct PartOutput {
     part: Part,
     plan_hash: String,
-    slot: Slot,
+    slot: OutputSlot,
 }
 
 /// A loaded plan with its claimed output files, ready to run.
@@ -64,8 +66,10 @@ pub struct PreparedRun {
 /// The claimed output files of a run, committed together.
 pub(super) struct Outputs {
     pub(super) set: CommitSet,
-    pub(super) csv: Option<Slot>,
-    pub(super) json: Option<Slot>,
+    pub(super) csv: Option<OutputSlot>,
+    pub(super) json: Option<OutputSlot>,
+    /// The `--tables` files, in [`report::tables::FILES`] order.
+    pub(super) tables: Option<Vec<OutputSlot>>,
 }
 
 impl PreparedRun {
@@ -128,6 +132,7 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
     };
     let checkpoint = prepare_checkpoint(req, &plan)?;
     let (csv, json) = claim_tables(&mut set, req.csv.as_deref(), req.json.as_deref())?;
+    let tables = claim_table_folder(&mut set, req.tables.as_deref())?;
     // A part is a share of the work; the whole run's limit is the merge's business.
     let workload = match &part {
         Some(p) => Workload {
@@ -144,7 +149,12 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
         plan,
         options,
         workload,
-        outputs: Outputs { set, csv, json },
+        outputs: Outputs {
+            set,
+            csv,
+            json,
+            tables,
+        },
         part,
         checkpoint,
     })
@@ -155,10 +165,41 @@ pub(super) fn claim_tables(
     set: &mut CommitSet,
     csv: Option<&Path>,
     json: Option<&Path>,
-) -> Result<(Option<Slot>, Option<Slot>), AppError> {
+) -> Result<(Option<OutputSlot>, Option<OutputSlot>), AppError> {
     let csv = csv.map(|p| set.claim("--csv", p)).transpose()?;
     let json = json.map(|p| set.claim("--json", p)).transpose()?;
     Ok((csv, json))
+}
+
+/// Claims the five files of `--tables DIR` in `set`: DIR must be an existing folder (like
+/// the folder of any other output); each file in it is checked as any output is.
+pub(super) fn claim_table_folder(
+    set: &mut CommitSet,
+    dir: Option<&Path>,
+) -> Result<Option<Vec<OutputSlot>>, AppError> {
+    let Some(dir) = dir else {
+        return Ok(None);
+    };
+    let refuse = |problem: &str| {
+        Err(AppError::Input(format!(
+            "--tables {}: {problem}\n  allowed: an existing, writable folder; vigil writes {} into it",
+            dir.display(),
+            report::tables::FILES.join(", ")
+        )))
+    };
+    if dir.as_os_str() == "-" {
+        return refuse("standard output cannot hold several tables; name a folder");
+    }
+    match std::fs::metadata(dir) {
+        Err(_) => return refuse("the folder does not exist (create it first)"),
+        Ok(m) if !m.is_dir() => return refuse("it is not a folder"),
+        Ok(_) => {}
+    }
+    report::tables::FILES
+        .iter()
+        .map(|name| set.claim("--tables", &dir.join(name)).map_err(Into::into))
+        .collect::<Result<Vec<_>, AppError>>()
+        .map(Some)
 }
 
 /// Checks `--checkpoint`/`--resume` and reads the checkpoint to resume from.
@@ -200,7 +241,11 @@ fn prepare_checkpoint(req: &RunRequest, plan: &Plan) -> Result<Option<Checkpoint
     if let Some(n) = req.experiments {
         hint.push_str(&format!(" --experiments {n}"));
     }
-    for (flag, file) in [("--csv", &req.csv), ("--json", &req.json)] {
+    for (flag, file) in [
+        ("--csv", &req.csv),
+        ("--json", &req.json),
+        ("--tables", &req.tables),
+    ] {
         if let Some(f) = file {
             hint.push_str(&format!(" {flag} {}", f.display()));
         }
@@ -235,9 +280,11 @@ fn check_part_options(req: &RunRequest) -> Result<(), AppError> {
         (Some(_), Some(_)) if req.exact => input(
             "--part cannot be combined with --exact: exact enumeration is not simulated in chunks and is quick whole; drop one of them",
         ),
-        (Some(_), Some(_)) if req.csv.is_some() || req.json.is_some() => input(
-            "--part writes only its partial-results file; --csv and --json are written by `vigil merge PLAN PARTS… --csv FILE --json FILE`",
-        ),
+        (Some(_), Some(_)) if req.csv.is_some() || req.json.is_some() || req.tables.is_some() => {
+            input(
+                "--part writes only its partial-results file; --csv, --json and --tables are written by `vigil merge PLAN PARTS… --csv FILE --json FILE --tables DIR`",
+            )
+        }
         (Some(_), Some(_)) => Ok(()),
     }
 }
@@ -323,17 +370,19 @@ pub fn execute(run: PreparedRun, progress: &Progress<'_>) -> Result<String, AppE
         resume_hint,
     } = checkpoint;
     match shard::checkpoint::run_checkpointed(&run.plan, plan_hash, &path, resumed, progress)? {
-        shard::checkpoint::Outcome::Done(totals) => {
+        shard::checkpoint::CheckpointOutcome::Done(totals) => {
             let text = execute_with(run, progress, Some(&totals))?;
             shard::checkpoint::remove_checkpoint(&path);
             Ok(text)
         }
-        shard::checkpoint::Outcome::Interrupted { saved, total } => Err(AppError::Interrupted {
-            path,
-            saved,
-            total,
-            resume: resume_hint,
-        }),
+        shard::checkpoint::CheckpointOutcome::Interrupted { saved, total } => {
+            Err(AppError::Interrupted {
+                path,
+                saved,
+                total,
+                resume: resume_hint,
+            })
+        }
     }
 }
 
@@ -410,6 +459,18 @@ fn write_outputs(
         let bytes = report::json_out::render(plan, summaries, searches, groups, advice)
             .map_err(|e| AppError::Internal(e.to_string()))?;
         outputs.set.write(slot, &bytes)?;
+    }
+    if let Some(slots) = outputs.tables {
+        let tables = report::tables::render(&report::tables::TableInputs {
+            plan,
+            summaries,
+            searches,
+            groups,
+        })
+        .map_err(|e| AppError::Internal(e.to_string()))?;
+        for (slot, (_, bytes)) in slots.into_iter().zip(tables) {
+            outputs.set.write(slot, &bytes)?;
+        }
     }
     Ok(outputs.set.commit()?)
 }

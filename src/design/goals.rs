@@ -33,6 +33,18 @@ impl TestKind {
         "group-difference",
     ];
 
+    /// The plan's spelling of the kind (one of [`Self::NAMES`]).
+    pub fn name(self) -> &'static str {
+        match self {
+            Self::Bias => "bias",
+            Self::IdealCriterion => "ideal-criterion",
+            Self::CriterionShift => "criterion-shift",
+            Self::SensitivityDifference => "sensitivity-difference",
+            Self::UnequalVariance => "unequal-variance",
+            Self::GroupDifference => "group-difference",
+        }
+    }
+
     pub fn from_name(name: &str) -> Option<Self> {
         Some(match name {
             "bias" => Self::Bias,
@@ -98,8 +110,45 @@ pub struct Animals {
     pub sd_criterion: f64,
     /// Correlation of an animal's d′ and criterion, in (−1, 1).
     pub correlation: f64,
+    /// Random slopes, σ and lapse rate between animals (all zero by default; left out of
+    /// JSON then, so plans without them print as before).
+    #[serde(skip_serializing_if = "Slopes::none")]
+    pub slopes: Slopes,
     /// Most trials one animal can be given (habituation), if limited.
     pub trial_cap: Option<u32>,
+}
+
+/// Between-animal variation beyond the intercepts (docs/groups.md, "Random slopes, σ and
+/// lapses"): every field 0 means every animal shares the plan's value.
+#[derive(Debug, Clone, Copy, PartialEq, Default, Serialize)]
+pub struct Slopes {
+    /// SD of an animal's own criterion shift from the first condition to every other, ≥ 0.
+    pub sd_criterion_shift: f64,
+    /// Correlation of that shift with the animal's criterion deviation, in (−1, 1).
+    pub correlation_criterion_shift: f64,
+    /// SD of an animal's own d′ change from the first condition to every other, ≥ 0.
+    pub sd_d_prime_change: f64,
+    /// Correlation of that change with the animal's d′ deviation, in (−1, 1).
+    pub correlation_d_prime_change: f64,
+    /// SD of ln σ between animals (σ log-normal, median the plan's σ), ≥ 0.
+    pub sd_ln_sigma: f64,
+    /// SD of the lapse rate between animals (beta, mean the plan's `lapse_rate`), ≥ 0.
+    pub sd_lapse_rate: f64,
+}
+
+impl Slopes {
+    /// True when every animal shares the plan's slopes, σ and lapse rate.
+    pub fn none(&self) -> bool {
+        !self.any()
+    }
+
+    /// True when some animal can differ from another beyond its d′ and criterion.
+    pub fn any(&self) -> bool {
+        self.sd_criterion_shift > 0.0
+            || self.sd_d_prime_change > 0.0
+            || self.sd_ln_sigma > 0.0
+            || self.sd_lapse_rate > 0.0
+    }
 }
 
 /// What animals and trials cost, and what may be spent.

@@ -66,9 +66,13 @@ impl CellsAnimals {
     /// The true condition specs of an animal with this deviation.
     pub fn animal_specs(&self, deviation: &Deviation) -> Vec<ConditionSpec> {
         let mut specs = self.truth.clone();
-        for s in &mut specs {
-            s.values.d_prime = deviation.d_prime_at(s.values.d_prime);
-            s.values.criterion = deviation.criterion_at(s.values.criterion);
+        for (j, s) in specs.iter_mut().enumerate() {
+            s.values.d_prime = deviation.d_prime_in(j, s.values.d_prime);
+            s.values.criterion = deviation.criterion_in(j, s.values.criterion);
+            s.values.sigma = deviation.sigma_at(s.values.sigma);
+            if let (Some(l), Some(rate)) = (s.lapse.as_mut(), deviation.lapse_rate) {
+                l.rate = rate;
+            }
         }
         specs
     }
@@ -193,6 +197,7 @@ mod tests {
         let dev = Deviation {
             d_prime: 0.2,
             criterion: -0.3,
+            ..Deviation::default()
         };
         let model = ObservationModel::new(a.animal_specs(&dev)).unwrap();
         let values = model.natural(&model.hypothesised_theta()).unwrap();
@@ -200,6 +205,28 @@ mod tests {
         assert!((values[1].d_prime - 1.7).abs() < 1e-12);
         assert!((values[0].criterion - 0.2).abs() < 1e-12);
         assert!((values[1].criterion + 0.3).abs() < 1e-12);
+    }
+
+    // A random slope moves every condition after the first by the animal's own shift and
+    // change; σ and the lapse rate are the animal's in every condition.
+    #[test]
+    fn a_slope_moves_only_the_later_conditions() {
+        let a = animals(400, 1.0);
+        let dev = Deviation {
+            criterion: 0.1,
+            criterion_shift: -0.25,
+            d_prime_change: 0.3,
+            ln_sigma: 0.2,
+            ..Deviation::default()
+        };
+        let specs = a.animal_specs(&dev);
+        assert!((specs[0].values.criterion - 0.6).abs() < 1e-12);
+        assert!((specs[1].values.criterion - (0.0 + 0.1 - 0.25)).abs() < 1e-12);
+        assert!((specs[0].values.d_prime - 1.5).abs() < 1e-12);
+        assert!((specs[1].values.d_prime - 1.8).abs() < 1e-12);
+        for s in &specs {
+            assert!((s.values.sigma - 0.2f64.exp()).abs() < 1e-12);
+        }
     }
 
     // The data come from the animal's own σ (the engine's truth_specs) even though a yes/no
@@ -230,6 +257,7 @@ mod tests {
         let dev = Deviation {
             d_prime: -0.1,
             criterion: 0.2,
+            ..Deviation::default()
         };
         let model = ObservationModel::new(a.animal_specs(&dev)).unwrap();
         let blocks = cell_probabilities(&model, &model.hypothesised_theta(), Order::First).unwrap();

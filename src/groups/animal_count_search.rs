@@ -18,7 +18,7 @@
 //! half-width is at most its target.
 
 use super::GroupError;
-use super::effort::{Allocation, Shortfall};
+use super::effort::{Allocation, EffortShortfall};
 use super::effort_search::{Approximate, Candidate, Goals, MAX_ANIMALS, Search};
 use super::grid::{DesignSetup, run_point};
 use super::summary::GroupSummary;
@@ -179,7 +179,7 @@ pub fn fewest_animals(
                 below = row;
             }
         }
-        pass.one_fewer = Some(Shortfall::of(&below));
+        pass.one_fewer = Some(EffortShortfall::of(&below));
     }
     pass.band = Some(band(
         search,

@@ -75,9 +75,10 @@ impl RatingAnimals {
         for (slot, c) in absolute.iter_mut().zip(&self.scale.criteria) {
             *slot = c + shift + d / 2.0;
         }
-        let params = RatingParams::new(d, self.sigma, &absolute[..k - 1]).ok()?;
+        let params =
+            RatingParams::new(d, deviation.sigma_at(self.sigma), &absolute[..k - 1]).ok()?;
         let (mut absent, mut present) = params.cell_probabilities();
-        if let Some(l) = self.lapse {
+        if let Some(l) = deviation.lapse_at(self.lapse) {
             l.mix(&mut absent[..k], b);
             l.mix(&mut present[..k], b);
         }
@@ -204,8 +205,8 @@ mod tests {
     fn the_scale_moves_with_the_animal() {
         let a = animals();
         let dev = Deviation {
-            d_prime: 0.0,
             criterion: 0.3,
+            ..Deviation::default()
         };
         let (absent, _) = a.probabilities(&dev).unwrap();
         let above: f64 = absent[2..4].iter().sum();
@@ -218,6 +219,7 @@ mod tests {
         let dev = Deviation {
             d_prime: 0.2,
             criterion: -0.1,
+            ..Deviation::default()
         };
         let (pa, pp) = a.probabilities(&dev).unwrap();
         let mut c = a.empty();

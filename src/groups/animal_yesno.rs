@@ -64,7 +64,8 @@ impl YesNoAnimals {
         Observer {
             d_prime: deviation.d_prime_at(self.observer.d_prime),
             criterion: deviation.criterion_at(self.observer.criterion),
-            ..self.observer
+            sigma: deviation.sigma_at(self.observer.sigma),
+            lapse: deviation.lapse_at(self.observer.lapse),
         }
     }
 }
@@ -205,6 +206,28 @@ mod tests {
         let f = total.false_alarms as f64 / total.absent as f64;
         assert!((h - hit).abs() < 6.0 * 0.00056, "{h} vs {hit}");
         assert!((f - fa).abs() < 6.0 * 0.00056, "{f} vs {fa}");
+    }
+
+    // An animal's own lapse rate and σ replace the plan's; its guessing rate stays.
+    #[test]
+    fn an_animal_carries_its_own_lapse_rate_and_sigma() {
+        let a = animals(
+            Some(LapseSpec {
+                rate: 0.1,
+                guess_yes: 0.7,
+            }),
+            RateCorrection::LogLinear,
+        );
+        let dev = Deviation {
+            ln_sigma: 0.5,
+            lapse_rate: Some(0.25),
+            ..Deviation::default()
+        };
+        let o = a.animal(&dev);
+        assert_eq!(o.lapse.unwrap().rate, 0.25);
+        assert_eq!(o.lapse.unwrap().guess_yes, 0.7);
+        assert!((o.sigma - 0.5f64.exp()).abs() < 1e-12);
+        assert_eq!(a.animal(&Deviation::default()), a.observer);
     }
 
     // Worked example computed with SciPy 1.17 (norm.ppf of the half-n rates): 20/20 hits,

@@ -16,7 +16,7 @@
 //! With lapses, the analysis model (lapses off) converges to pseudo-true values: θ* is the
 //! analysis fit to the expected counts of the lapsing animal, and δ and w(n) are taken at θ*.
 
-use super::hypotheses::{Contrast, GroupTest};
+use super::hypotheses::{GroupContrast, GroupTest};
 use super::population::Population;
 use crate::cells::cell_probabilities::{Order, cell_probabilities};
 use crate::cells::information::{UnitInformation, precision};
@@ -91,21 +91,43 @@ impl Approximation {
         let m = &self.model;
         let at = |j: usize, slot: usize| entry(m, j, slot).map(|i| self.theta[i]);
         let value = match test.contrast {
-            Contrast::Criterion { condition } => at(condition, SLOT_CRITERION)?,
-            Contrast::CriterionShift { a, b } => at(a, SLOT_CRITERION)? - at(b, SLOT_CRITERION)?,
-            Contrast::SensitivityDifference { a, b } => at(a, SLOT_D_PRIME)? - at(b, SLOT_D_PRIME)?,
-            Contrast::LnSigma => at(0, SLOT_LN_SIGMA)?,
-            Contrast::GroupDifference { shift, .. } => shift,
+            GroupContrast::Criterion { condition } => at(condition, SLOT_CRITERION)?,
+            GroupContrast::CriterionShift { a, b } => {
+                at(a, SLOT_CRITERION)? - at(b, SLOT_CRITERION)?
+            }
+            GroupContrast::SensitivityDifference { a, b } => {
+                at(a, SLOT_D_PRIME)? - at(b, SLOT_D_PRIME)?
+            }
+            GroupContrast::LnSigma => at(0, SLOT_LN_SIGMA)?,
+            GroupContrast::GroupDifference { shift, .. } => shift,
         };
         Some(value - test.null)
     }
 
     /// Between-animal variance of a test's per-animal contrast.
+    /// With random slopes (applied to every condition after the first), a contrast between
+    /// the first condition and another varies with the slope's SD, and a criterion in a later
+    /// condition with Var(δc + u) = s_c² + s_u² + 2·r·s_c·s_u.
     pub fn between(&self, test: &GroupTest) -> f64 {
+        let p = &self.population;
+        let s = &p.slopes;
+        let one_is_first = |a: usize, b: usize| (a == 0) != (b == 0);
         match test.contrast {
-            Contrast::Criterion { .. } | Contrast::GroupDifference { .. } => {
-                self.population.sd_criterion.powi(2)
+            GroupContrast::Criterion { condition } if condition > 0 => {
+                p.sd_criterion.powi(2)
+                    + s.sd_criterion_shift.powi(2)
+                    + 2.0 * s.correlation_criterion_shift * p.sd_criterion * s.sd_criterion_shift
             }
+            GroupContrast::Criterion { .. } | GroupContrast::GroupDifference { .. } => {
+                p.sd_criterion.powi(2)
+            }
+            GroupContrast::CriterionShift { a, b } if one_is_first(a, b) => {
+                s.sd_criterion_shift.powi(2)
+            }
+            GroupContrast::SensitivityDifference { a, b } if one_is_first(a, b) => {
+                s.sd_d_prime_change.powi(2)
+            }
+            GroupContrast::LnSigma => s.sd_ln_sigma.powi(2),
             _ => 0.0,
         }
     }
@@ -141,11 +163,15 @@ impl Approximation {
             tests: tests
                 .iter()
                 .map(|t| match t.contrast {
-                    Contrast::Criterion { condition, .. }
-                    | Contrast::GroupDifference { condition, .. } => var(&[(c(condition), 1.0)]),
-                    Contrast::CriterionShift { a, b } => var(&[(c(a), 1.0), (c(b), -1.0)]),
-                    Contrast::SensitivityDifference { a, b } => var(&[(d(a), 1.0), (d(b), -1.0)]),
-                    Contrast::LnSigma => var(&[(entry(m, 0, SLOT_LN_SIGMA), 1.0)]),
+                    GroupContrast::Criterion { condition, .. }
+                    | GroupContrast::GroupDifference { condition, .. } => {
+                        var(&[(c(condition), 1.0)])
+                    }
+                    GroupContrast::CriterionShift { a, b } => var(&[(c(a), 1.0), (c(b), -1.0)]),
+                    GroupContrast::SensitivityDifference { a, b } => {
+                        var(&[(d(a), 1.0), (d(b), -1.0)])
+                    }
+                    GroupContrast::LnSigma => var(&[(entry(m, 0, SLOT_LN_SIGMA), 1.0)]),
                 })
                 .collect(),
             criterion: var(&[(c(0), 1.0)]),

@@ -57,13 +57,13 @@ pub struct Allocation {
     pub band: Option<u32>,
     /// Fewest-animals rows: the same trial count with one animal fewer, on the same
     /// simulated studies (`None` when the row is the smallest study the test allows).
-    pub one_fewer: Option<Shortfall>,
+    pub one_fewer: Option<EffortShortfall>,
     pub summary: GroupSummary,
 }
 
 /// The simulated figures of one animal fewer than a fewest-animals row.
 #[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Shortfall {
+pub struct EffortShortfall {
     pub animals: u32,
     pub power: Vec<Share>,
     pub criterion_half_width: Figure,
@@ -71,7 +71,7 @@ pub struct Shortfall {
     pub meets_targets: Option<bool>,
 }
 
-impl Shortfall {
+impl EffortShortfall {
     /// The figures of a simulated allocation.
     pub fn of(a: &Allocation) -> Self {
         Self {

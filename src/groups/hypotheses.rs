@@ -25,7 +25,7 @@ use serde::Serialize;
 /// What a hypothesis compares, in a design's condition indices.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 #[serde(tag = "on", rename_all = "kebab-case")]
-pub enum Contrast {
+pub enum GroupContrast {
     /// c of one condition.
     Criterion { condition: usize },
     /// c of condition `a` minus c of condition `b`.
@@ -44,7 +44,7 @@ pub struct GroupTest {
     pub name: String,
     pub kind: TestKind,
     pub sided: Sided,
-    pub contrast: Contrast,
+    pub contrast: GroupContrast,
     /// The value the hypothesis tests the contrast against (0, or the ideal criterion).
     pub null: f64,
     /// The contrast's value under the population means.
@@ -63,30 +63,30 @@ impl GroupTest {
 
     /// Whether the test needs a separate two-population study.
     pub fn two_populations(&self) -> bool {
-        matches!(self.contrast, Contrast::GroupDifference { .. })
+        matches!(self.contrast, GroupContrast::GroupDifference { .. })
     }
 
     /// The two-stage test of contrast = `null` on one population's animals: `Some(reject)`,
     /// or `None` when the test has no answer (fewer than 2 usable animals, no spread).
     pub fn two_stage(&self, animals: &[AnimalEstimate], null: f64, alpha: f64) -> Option<bool> {
         let outcome = match self.contrast {
-            Contrast::Criterion { condition } => {
+            GroupContrast::Criterion { condition } => {
                 let c: Vec<f64> = animals.iter().map(|e| e.criterion[condition]).collect();
                 one_sample_t(&c, null, self.sided, alpha)
             }
-            Contrast::CriterionShift { a, b } => {
+            GroupContrast::CriterionShift { a, b } => {
                 let (x, y) = pairs(animals, |e| &e.criterion, a, b);
                 paired_t(&x, &y, null, self.sided, alpha)
             }
-            Contrast::SensitivityDifference { a, b } => {
+            GroupContrast::SensitivityDifference { a, b } => {
                 let (x, y) = pairs(animals, |e| &e.d_prime, a, b);
                 paired_t(&x, &y, null, self.sided, alpha)
             }
-            Contrast::LnSigma => {
+            GroupContrast::LnSigma => {
                 let s: Option<Vec<f64>> = animals.iter().map(|e| e.ln_sigma).collect();
                 one_sample_t(&s?, null, self.sided, alpha)
             }
-            Contrast::GroupDifference { .. } => return None,
+            GroupContrast::GroupDifference { .. } => return None,
         };
         outcome.ok().map(|o| o.reject)
     }
@@ -99,7 +99,7 @@ impl GroupTest {
         null: f64,
         alpha: f64,
     ) -> Option<bool> {
-        let Contrast::GroupDifference { condition, .. } = self.contrast else {
+        let GroupContrast::GroupDifference { condition, .. } = self.contrast else {
             return None;
         };
         let c = |g: &[AnimalEstimate]| -> Vec<f64> {
@@ -113,17 +113,17 @@ impl GroupTest {
     /// The pooled Wald test of contrast = `null` on one population's summed counts.
     pub fn pooled(&self, p: &PooledEstimate, null: f64, alpha: f64) -> Option<bool> {
         let (estimate, se) = match self.contrast {
-            Contrast::Criterion { condition } => {
+            GroupContrast::Criterion { condition } => {
                 p.contrast(&[(criterion_index(condition), 1.0)])?
             }
-            Contrast::CriterionShift { a, b } => {
+            GroupContrast::CriterionShift { a, b } => {
                 p.contrast(&[(criterion_index(a), 1.0), (criterion_index(b), -1.0)])?
             }
-            Contrast::SensitivityDifference { a, b } => {
+            GroupContrast::SensitivityDifference { a, b } => {
                 p.contrast(&[(d_prime_index(a), 1.0), (d_prime_index(b), -1.0)])?
             }
-            Contrast::LnSigma => p.ln_sigma?,
-            Contrast::GroupDifference { .. } => return None,
+            GroupContrast::LnSigma => p.ln_sigma?,
+            GroupContrast::GroupDifference { .. } => return None,
         };
         wald_test(estimate, se, null, self.sided, alpha)
             .ok()
@@ -139,7 +139,7 @@ impl GroupTest {
         null: f64,
         alpha: f64,
     ) -> Option<bool> {
-        let Contrast::GroupDifference { condition, .. } = self.contrast else {
+        let GroupContrast::GroupDifference { condition, .. } = self.contrast else {
             return None;
         };
         let (c1, s1) = first.contrast(&[(criterion_index(condition), 1.0)])?;
@@ -188,7 +188,7 @@ fn group_test(plan: &Plan, design: &Design, h: &Hypothesis) -> Result<GroupTest,
         TestKind::Bias => {
             let j = first()?;
             (
-                Contrast::Criterion { condition: j },
+                GroupContrast::Criterion { condition: j },
                 0.0,
                 conds[j].criterion,
             )
@@ -199,7 +199,7 @@ fn group_test(plan: &Plan, design: &Design, h: &Hypothesis) -> Result<GroupTest,
                 "the ideal criterion is known only with criterion = \"optimal\" and payoffs",
             )?;
             (
-                Contrast::Criterion { condition: j },
+                GroupContrast::Criterion { condition: j },
                 ideal,
                 conds[j].criterion,
             )
@@ -211,13 +211,13 @@ fn group_test(plan: &Plan, design: &Design, h: &Hypothesis) -> Result<GroupTest,
             };
             if h.kind == TestKind::CriterionShift {
                 (
-                    Contrast::CriterionShift { a, b },
+                    GroupContrast::CriterionShift { a, b },
                     0.0,
                     conds[a].criterion - conds[b].criterion,
                 )
             } else {
                 (
-                    Contrast::SensitivityDifference { a, b },
+                    GroupContrast::SensitivityDifference { a, b },
                     0.0,
                     conds[a].d_prime - conds[b].d_prime,
                 )
@@ -229,11 +229,11 @@ fn group_test(plan: &Plan, design: &Design, h: &Hypothesis) -> Result<GroupTest,
             if !estimates_sigma {
                 return Err("the design does not estimate σ".into());
             }
-            (Contrast::LnSigma, 0.0, plan.observer().sigma.ln())
+            (GroupContrast::LnSigma, 0.0, plan.observer().sigma.ln())
         }
         TestKind::GroupDifference => {
             let j = first()?;
-            let contrast = Contrast::GroupDifference {
+            let contrast = GroupContrast::GroupDifference {
                 condition: j,
                 shift: h.shift,
             };
@@ -264,7 +264,7 @@ mod tests {
         }
     }
 
-    fn test(contrast: Contrast) -> GroupTest {
+    fn test(contrast: GroupContrast) -> GroupTest {
         GroupTest {
             name: "h".into(),
             kind: TestKind::Bias,
@@ -286,7 +286,7 @@ mod tests {
             .iter()
             .map(|&c| animal([c, 0.0], [1.0, 1.0]))
             .collect();
-        let t = test(Contrast::Criterion { condition: 0 });
+        let t = test(GroupContrast::Criterion { condition: 0 });
         assert_eq!(t.two_stage(&xs, 0.0, 0.05), Some(false));
         assert_eq!(t.two_stage(&xs, 0.0, 0.10), Some(true));
         assert_eq!(
@@ -306,9 +306,9 @@ mod tests {
             animal([0.9, 0.62], [1.0, 1.0]),
             animal([0.4, 0.09], [1.0, 1.0]),
         ];
-        let t = test(Contrast::CriterionShift { a: 0, b: 1 });
+        let t = test(GroupContrast::CriterionShift { a: 0, b: 1 });
         assert_eq!(t.two_stage(&xs, 0.0, 0.01), Some(true));
-        let s = test(Contrast::SensitivityDifference { a: 0, b: 1 });
+        let s = test(GroupContrast::SensitivityDifference { a: 0, b: 1 });
         assert_eq!(
             s.two_stage(&xs, 0.0, 0.05),
             None,
@@ -319,7 +319,7 @@ mod tests {
     #[test]
     fn pooled_wald_uses_the_pooled_se() {
         let p = PooledEstimate::single((1.5, 0.1), (0.2, 0.05), 0.0);
-        let t = test(Contrast::Criterion { condition: 0 });
+        let t = test(GroupContrast::Criterion { condition: 0 });
         assert_eq!(t.pooled(&p, 0.0, 0.05), Some(true)); // z = 4
         assert_eq!(t.pooled(&p, 0.15, 0.05), Some(false)); // z = 1
         let near = PooledEstimate::single((1.5, 0.1), (0.05, 0.05), 0.0);

@@ -49,7 +49,7 @@ impl PrecisionTally {
 
 /// Rejections and failures of one hypothesis.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Serialize, Deserialize)]
-pub struct TestTally {
+pub struct GroupTestTally {
     pub two_stage_reject: u64,
     /// Studies where the two-stage test had no answer (too few usable animals).
     pub two_stage_failed: u64,
@@ -61,7 +61,7 @@ pub struct TestTally {
     pub pooled_false: u64,
 }
 
-impl TestTally {
+impl GroupTestTally {
     /// Records one study: each test against the hypothesis's null and against the truth.
     fn record(&mut self, two_stage: [Option<bool>; 2], pooled: [Option<bool>; 2]) {
         match two_stage[0] {
@@ -94,7 +94,7 @@ pub struct GroupTally {
     pub failed_studies: u64,
     pub animals: u64,
     pub animals_dropped: u64,
-    pub tests: Vec<TestTally>,
+    pub tests: Vec<GroupTestTally>,
     /// Group mean of the animals' ĉ (first condition), its SE s/√m and t interval.
     pub criterion: PrecisionTally,
     /// The same for d̂′.
@@ -224,7 +224,7 @@ impl<P: AnimalPath> Kernel for GroupKernel<P> {
 
     fn tally(&self) -> GroupTally {
         GroupTally {
-            tests: vec![TestTally::default(); self.tests.len()],
+            tests: vec![GroupTestTally::default(); self.tests.len()],
             ..GroupTally::default()
         }
     }
@@ -265,7 +265,8 @@ impl<P: AnimalPath> Kernel for GroupKernel<P> {
         }
         // A group difference is its own study: half the animals from each population.
         for (test, into) in self.tests.iter().zip(tally.tests.iter_mut()) {
-            let super::hypotheses::Contrast::GroupDifference { shift, .. } = test.contrast else {
+            let super::hypotheses::GroupContrast::GroupDifference { shift, .. } = test.contrast
+            else {
                 continue;
             };
             let Some([a, b]) = population_seeds.next() else {
@@ -345,6 +346,7 @@ mod tests {
             sd_d_prime: 0.3,
             sd_criterion: 0.35,
             correlation: -0.3,
+            ..Population::identical()
         };
         let kernel = GroupKernel::new(path(), population, 9, Vec::new(), 0.05, 0.95, (-0.2, 1.2));
         for r in 0..20 {

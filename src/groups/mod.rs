@@ -1,5 +1,5 @@
-//! Groups of animals: between-animal variation, group-level inference, lapses, and how to
-//! split effort between animals and trials.
+//! Groups of animals: between-animal variation (intercepts, random slopes, σ, lapse rate),
+//! group-level inference, lapses, and how to split effort between animals and trials.
 //!
 //! A plan with an `[animals]` table describes a population: every animal's d′ and criterion
 //! depart from the plan's by a bivariate-normal deviation ([`population`]). Each simulated
@@ -115,7 +115,8 @@ pub struct GroupReport {
 
 pub fn setups(plan: &Plan) -> Result<Vec<DesignSetup<'_>>, GroupError> {
     let animals = plan.animals().as_ref().ok_or(GroupError::NoAnimals)?;
-    let population = Population::from_animals(animals);
+    let population = Population::from_animals(animals)
+        .with_lapse_rate(plan.observer().lapse.map_or(0.0, |l| l.rate));
     Ok(plan
         .designs()
         .iter()

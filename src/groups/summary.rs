@@ -7,7 +7,7 @@
 //! is reported beside it.
 
 use super::hypotheses::GroupTest;
-use super::kernel::{GroupTally, PrecisionTally, TestTally};
+use super::kernel::{GroupTally, GroupTestTally, PrecisionTally};
 use crate::design::goals::TestKind;
 use crate::engine::summary::MC_LEVEL;
 use crate::engine::{Figure, Share};
@@ -34,7 +34,7 @@ pub struct GroupPrecision {
 
 /// Power of one hypothesis, two-stage and pooled.
 #[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct TestSummary {
+pub struct GroupTestSummary {
     pub name: String,
     pub kind: TestKind,
     pub sided: Sided,
@@ -50,7 +50,7 @@ pub struct TestSummary {
     pub pooled_false: Share,
 }
 
-impl TestSummary {
+impl GroupTestSummary {
     /// Whether the population sits on the null, so rejections are false positives.
     pub fn null_is_true(&self) -> bool {
         self.effect.abs() < 1e-12
@@ -61,7 +61,7 @@ impl TestSummary {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct GroupSummary {
     pub studies: u64,
-    pub tests: Vec<TestSummary>,
+    pub tests: Vec<GroupTestSummary>,
     /// Two-stage: the mean of the animals' ĉ (first condition), SE s/√m, t interval.
     pub criterion: GroupPrecision,
     pub d_prime: GroupPrecision,
@@ -117,8 +117,8 @@ fn precision(t: &PrecisionTally, truth: f64) -> GroupPrecision {
     }
 }
 
-fn test_summary(test: &GroupTest, t: &TestTally, studies: u64) -> TestSummary {
-    TestSummary {
+fn test_summary(test: &GroupTest, t: &GroupTestTally, studies: u64) -> GroupTestSummary {
+    GroupTestSummary {
         name: test.name.clone(),
         kind: test.kind,
         sided: test.sided,

@@ -29,7 +29,7 @@ not a symbolic link, device node or named pipe";
 
 /// A claimed output in a [`CommitSet`].
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub struct Slot(usize);
+pub struct OutputSlot(usize);
 
 /// Why an output could not be claimed or written.
 #[derive(Debug, Error)]
@@ -100,7 +100,7 @@ impl CommitSet {
 
     /// Checks `path` for the output of `option` and creates its temporary file; sweeps the
     /// folder of temporaries left by killed vigil processes.
-    pub fn claim(&mut self, option: &str, path: &Path) -> Result<Slot, OutputError> {
+    pub fn claim(&mut self, option: &str, path: &Path) -> Result<OutputSlot, OutputError> {
         let refused = |problem| OutputError::Refused {
             option: option.to_string(),
             path: path.to_path_buf(),
@@ -156,11 +156,11 @@ impl CommitSet {
                 written: false,
             },
         ));
-        Ok(Slot(self.entries.len() - 1))
+        Ok(OutputSlot(self.entries.len() - 1))
     }
 
     /// The path the user gave for `slot` (`-` for standard output).
-    pub fn path(&self, slot: Slot) -> PathBuf {
+    pub fn path(&self, slot: OutputSlot) -> PathBuf {
         match &self.entries[slot.0].1.target {
             OutputTarget::Stdout => PathBuf::from("-"),
             OutputTarget::File { given, .. } => given.clone(),
@@ -169,7 +169,7 @@ impl CommitSet {
 
     /// Writes the whole content of `slot` to its temporary file and fsyncs it (or keeps it
     /// for standard output). Nothing is replaced yet.
-    pub fn write(&mut self, slot: Slot, bytes: &[u8]) -> Result<(), OutputError> {
+    pub fn write(&mut self, slot: OutputSlot, bytes: &[u8]) -> Result<(), OutputError> {
         let path = self.path(slot);
         let entry = &mut self.entries[slot.0].1;
         match &entry.temp {

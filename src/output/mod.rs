@@ -24,7 +24,7 @@ pub mod pending_file;
 pub mod target;
 pub mod temporaries;
 
-pub use commit_set::{CommitSet, OUTPUT_ALLOWED, OutputError, Slot};
+pub use commit_set::{CommitSet, OUTPUT_ALLOWED, OutputError, OutputSlot};
 pub use pending_file::PendingFile;
 pub use target::{OutputTarget, PathProblem};
 pub use temporaries::{cleanup_on_signals, stop_gracefully_with};

@@ -2,14 +2,14 @@
 //! interface. Commands that write several files use a [`CommitSet`], so that all appear
 //! together or none does.
 
-use super::commit_set::{CommitSet, OutputError, Slot};
+use super::commit_set::{CommitSet, OutputError, OutputSlot};
 use std::path::{Path, PathBuf};
 
 /// A claimed output path with its temporary file.
 #[derive(Debug)]
 pub struct PendingFile {
     set: CommitSet,
-    slot: Slot,
+    slot: OutputSlot,
     target: PathBuf,
 }
 

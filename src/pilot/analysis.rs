@@ -1,7 +1,7 @@
 //! A whole pilot analysed: the per-animal fits, the population values and the pilot's design
 //! (trials per animal, share of present trials) that a plan skeleton starts from.
 
-use super::animal_fit::{AnimalFit, FitSettings, NoFit, fit_animals};
+use super::animal_fit::{AnimalFit, NoFit, PilotFitSettings, fit_animals};
 use super::population::{PopulationError, PopulationFit, PopulationSettings, fit_population};
 use super::read::PilotData;
 
@@ -9,7 +9,7 @@ use super::read::PilotData;
 #[derive(Debug, Clone, PartialEq)]
 pub struct PilotAnalysis {
     pub data: PilotData,
-    pub settings: FitSettings,
+    pub settings: PilotFitSettings,
     pub population_settings: PopulationSettings,
     /// One per animal, in file order.
     pub fits: Vec<AnimalFit>,
@@ -35,7 +35,7 @@ impl PilotAnalysis {
 /// Fits the animals of `data` and the population values of those with a fit.
 pub fn analyse(
     data: PilotData,
-    settings: FitSettings,
+    settings: PilotFitSettings,
     population_settings: PopulationSettings,
 ) -> Result<PilotAnalysis, PopulationError> {
     let fits = fit_animals(&data, settings);

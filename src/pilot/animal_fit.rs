@@ -10,7 +10,7 @@ use crate::vocab::RateCorrection;
 
 /// How the animals are fitted.
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub struct FitSettings {
+pub struct PilotFitSettings {
     /// The rule for rates of 0 or 1 (the plan's `rate_correction`).
     pub correction: RateCorrection,
     /// On a graded scale, the criterion (1 … K−1) that is the yes/no boundary: categories
@@ -50,7 +50,7 @@ pub struct AnimalFit {
 }
 
 /// Fits every animal of `data` in every condition.
-pub fn fit_animals(data: &PilotData, settings: FitSettings) -> Vec<AnimalFit> {
+pub fn fit_animals(data: &PilotData, settings: PilotFitSettings) -> Vec<AnimalFit> {
     data.animals
         .iter()
         .map(|animal| AnimalFit {
@@ -76,7 +76,7 @@ pub fn fit_animals(data: &PilotData, settings: FitSettings) -> Vec<AnimalFit> {
 
 /// One table's fit; `Err(true)` when degenerate, `Err(false)` when the rating fit did not
 /// converge.
-fn fit_table(table: &CountTable, settings: FitSettings) -> Result<ConditionFit, bool> {
+fn fit_table(table: &CountTable, settings: PilotFitSettings) -> Result<ConditionFit, bool> {
     if table.absent.len() == 2 {
         return fit_two(table, settings.correction).ok_or(true);
     }
@@ -99,7 +99,7 @@ fn fit_two(table: &CountTable, correction: RateCorrection) -> Option<ConditionFi
     })
 }
 
-fn fit_graded(table: &CountTable, settings: FitSettings) -> Result<ConditionFit, bool> {
+fn fit_graded(table: &CountTable, settings: PilotFitSettings) -> Result<ConditionFit, bool> {
     let as_f64 = |row: &[u32]| row.iter().map(|&x| f64::from(x)).collect::<Vec<_>>();
     let raw =
         RatingTable::new(&as_f64(&table.absent), &as_f64(&table.present)).map_err(|_| true)?;

@@ -7,7 +7,7 @@
 
 /// What a column holds.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Role {
+pub enum ColumnRole {
     Animal,
     Condition,
     Stimulus,
@@ -15,20 +15,20 @@ pub enum Role {
     Count,
 }
 
-impl Role {
+impl ColumnRole {
     /// Every role, in the order errors list them.
-    pub const ALL: [Role; 5] = [
-        Role::Animal,
-        Role::Condition,
-        Role::Stimulus,
-        Role::Response,
-        Role::Count,
+    pub const ALL: [ColumnRole; 5] = [
+        ColumnRole::Animal,
+        ColumnRole::Condition,
+        ColumnRole::Stimulus,
+        ColumnRole::Response,
+        ColumnRole::Count,
     ];
 
     /// The header names accepted for this role (normalised spelling).
     pub fn names(self) -> &'static [&'static str] {
         match self {
-            Role::Animal => &[
+            ColumnRole::Animal => &[
                 "animal",
                 "animal_id",
                 "subject",
@@ -36,8 +36,8 @@ impl Role {
                 "individual",
                 "id",
             ],
-            Role::Condition => &["condition", "treatment", "cond"],
-            Role::Stimulus => &[
+            ColumnRole::Condition => &["condition", "treatment", "cond"],
+            ColumnRole::Stimulus => &[
                 "stimulus",
                 "stimulus_class",
                 "stim",
@@ -45,14 +45,14 @@ impl Role {
                 "class",
                 "trial_type",
             ],
-            Role::Response => &["response", "resp", "category", "rating", "answer"],
-            Role::Count => &["count", "n", "freq", "frequency"],
+            ColumnRole::Response => &["response", "resp", "category", "rating", "answer"],
+            ColumnRole::Count => &["count", "n", "freq", "frequency"],
         }
     }
 
     /// Whether a file must have this column (a missing condition column means one condition).
     pub fn required(self) -> bool {
-        self != Role::Condition
+        self != ColumnRole::Condition
     }
 }
 
@@ -72,9 +72,9 @@ pub fn normalise(name: &str) -> String {
 }
 
 /// The role of a header, if it names one.
-pub fn role_of(header: &str) -> Option<Role> {
+pub fn role_of(header: &str) -> Option<ColumnRole> {
     let n = normalise(header);
-    Role::ALL
+    ColumnRole::ALL
         .into_iter()
         .find(|r| r.names().contains(&n.as_str()))
 }
@@ -181,10 +181,10 @@ mod tests {
 
     #[test]
     fn headers_from_r_and_pandas() {
-        assert_eq!(role_of("Animal"), Some(Role::Animal));
-        assert_eq!(role_of("animal.id"), Some(Role::Animal));
-        assert_eq!(role_of(" Stimulus Class "), Some(Role::Stimulus));
-        assert_eq!(role_of("N"), Some(Role::Count));
+        assert_eq!(role_of("Animal"), Some(ColumnRole::Animal));
+        assert_eq!(role_of("animal.id"), Some(ColumnRole::Animal));
+        assert_eq!(role_of(" Stimulus Class "), Some(ColumnRole::Stimulus));
+        assert_eq!(role_of("N"), Some(ColumnRole::Count));
         assert_eq!(role_of("weather"), None);
         assert!(is_index_column(""));
         assert!(is_index_column("Unnamed: 0"));

@@ -16,7 +16,7 @@ pub mod population;
 pub mod read;
 
 pub use analysis::{PilotAnalysis, analyse};
-pub use animal_fit::{AnimalFit, ConditionFit, FitSettings, NoFit, fit_animals};
+pub use animal_fit::{AnimalFit, ConditionFit, NoFit, PilotFitSettings, fit_animals};
 pub use error::PilotError;
 pub use population::{PopulationFit, PopulationSettings, fit_population};
 pub use read::{PilotData, read};

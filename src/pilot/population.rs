@@ -43,12 +43,12 @@ use statrs::distribution::{ChiSquared, ContinuousCDF, StudentsT};
 
 /// A closed interval.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
-pub struct Interval {
+pub struct PopulationInterval {
     pub low: f64,
     pub high: f64,
 }
 
-impl Interval {
+impl PopulationInterval {
     /// Whether `x` lies in the interval (ends included).
     pub fn contains(&self, x: f64) -> bool {
         self.low <= x && x <= self.high
@@ -61,14 +61,14 @@ pub struct MeanEstimate {
     pub value: f64,
     /// s/√n over animals.
     pub se: f64,
-    pub interval: Interval,
+    pub interval: PopulationInterval,
 }
 
 /// A between-animal SD (moment estimate, truncated at 0) with its chi-square interval.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct SdEstimate {
     pub value: f64,
-    pub interval: Interval,
+    pub interval: PopulationInterval,
 }
 
 /// The between-animal correlation of d′ and c with its interval by test inversion.
@@ -77,7 +77,7 @@ pub struct CorrelationEstimate {
     /// `None` when either between-animal SD is estimated as 0 or there are fewer than 3 animals.
     pub value: Option<f64>,
     /// `None` with fewer than 3 animals, or when no candidate correlation is kept.
-    pub interval: Option<Interval>,
+    pub interval: Option<PopulationInterval>,
     /// Simulated pilots per candidate correlation.
     pub simulations: usize,
 }
@@ -197,7 +197,7 @@ fn mean_estimate(values: &[f64], t: f64) -> MeanEstimate {
     MeanEstimate {
         value: mean,
         se,
-        interval: Interval {
+        interval: PopulationInterval {
             low: mean - t * se,
             high: mean + t * se,
         },
@@ -213,7 +213,7 @@ fn sd_estimate(observed: f64, within: f64, n: usize, confidence: f64) -> SdEstim
     let root = |v: f64| v.max(0.0).sqrt();
     SdEstimate {
         value: root(observed - within),
-        interval: Interval {
+        interval: PopulationInterval {
             low: root(df * observed / q_high - within),
             high: root(df * observed / q_low - within),
         },
@@ -385,7 +385,7 @@ fn correlation_interval(
     };
     CorrelationEstimate {
         value: correlation(m, w),
-        interval: accepted.map(|(lo, hi)| Interval {
+        interval: accepted.map(|(lo, hi)| PopulationInterval {
             low: widen(lo),
             high: widen(hi),
         }),

@@ -7,7 +7,7 @@
 //! is an error, not a skipped row.
 
 use super::error::PilotError;
-use super::labels::{self, BadCount, MAX_COUNT, Role, Stimulus};
+use super::labels::{self, BadCount, ColumnRole, MAX_COUNT, Stimulus};
 use crate::vocab::MAX_CATEGORIES;
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
@@ -153,7 +153,7 @@ struct Columns {
     index: HashMap<&'static str, usize>,
 }
 
-fn role_key(role: Role) -> &'static str {
+fn role_key(role: ColumnRole) -> &'static str {
     role.names()[0]
 }
 
@@ -182,7 +182,7 @@ impl Columns {
                 index.insert(role_key(role), i);
             }
         }
-        for role in Role::ALL {
+        for role in ColumnRole::ALL {
             if role.required() && !index.contains_key(role_key(role)) {
                 let seen: Vec<String> = headers.iter().map(|h| format!("`{h}`")).collect();
                 return Err(PilotError::file(
@@ -207,7 +207,7 @@ impl Columns {
         Ok(Self { index })
     }
 
-    fn get(&self, role: Role) -> Option<usize> {
+    fn get(&self, role: ColumnRole) -> Option<usize> {
         self.index.get(role_key(role)).copied()
     }
 }
@@ -244,13 +244,13 @@ impl Builder {
         record: &csv::StringRecord,
         line: u64,
     ) -> Result<(), PilotError> {
-        let field = |role: Role| -> (usize, &str) {
+        let field = |role: ColumnRole| -> (usize, &str) {
             let i = columns.get(role).expect("required column");
             (i, record.get(i).unwrap_or(""))
         };
         let at = |e: PilotError, i: usize| e.at_line(line).at_column(i, &headers[i]);
 
-        let (ai, animal) = field(Role::Animal);
+        let (ai, animal) = field(ColumnRole::Animal);
         if animal.is_empty() {
             return Err(at(
                 PilotError::file(
@@ -261,7 +261,7 @@ impl Builder {
                 ai,
             ));
         }
-        let condition = match columns.get(Role::Condition) {
+        let condition = match columns.get(ColumnRole::Condition) {
             Some(ci) => {
                 let c = record.get(ci).unwrap_or("");
                 if c.is_empty() {
@@ -278,7 +278,7 @@ impl Builder {
             }
             None => "",
         };
-        let (si, stim) = field(Role::Stimulus);
+        let (si, stim) = field(ColumnRole::Stimulus);
         let stimulus = labels::stimulus(stim).ok_or_else(|| {
             at(
                 PilotError::file(
@@ -289,7 +289,7 @@ impl Builder {
                 si,
             )
         })?;
-        let (ri, resp) = field(Role::Response);
+        let (ri, resp) = field(ColumnRole::Response);
         let category = labels::response(resp, self.categories).ok_or_else(|| {
             at(
                 PilotError::file(
@@ -300,7 +300,7 @@ impl Builder {
                 ri,
             )
         })?;
-        let (ni, n) = field(Role::Count);
+        let (ni, n) = field(ColumnRole::Count);
         let count = labels::count(n).map_err(|bad| {
             let problem = match bad {
                 BadCount::Missing => "the count is missing".to_string(),
@@ -365,7 +365,7 @@ impl Builder {
         columns: &Columns,
         headers: &csv::StringRecord,
     ) -> Result<PilotData, PilotError> {
-        let stim_col = columns.get(Role::Stimulus).expect("required column");
+        let stim_col = columns.get(ColumnRole::Stimulus).expect("required column");
         let mut animals = Vec::with_capacity(self.animals.len());
         for (a, name) in self.animals.iter().enumerate() {
             let mut tables = Vec::with_capacity(self.conditions.len());
@@ -376,7 +376,9 @@ impl Builder {
                     format!(" in condition `{cond}`")
                 };
                 let Some(table) = self.tables.remove(&(a, c)) else {
-                    let ci = columns.get(Role::Condition).expect("several conditions");
+                    let ci = columns
+                        .get(ColumnRole::Condition)
+                        .expect("several conditions");
                     return Err(PilotError::file(
                         path,
                         format!(

@@ -76,6 +76,12 @@ pub const TABLE_KEYS: &[(&str, &[&str])] = &[
             "sd_d_prime",
             "sd_criterion",
             "correlation",
+            "sd_criterion_shift",
+            "correlation_criterion_shift",
+            "sd_d_prime_change",
+            "correlation_d_prime_change",
+            "sd_ln_sigma",
+            "sd_lapse_rate",
             "trial_cap",
         ],
     ),
@@ -148,6 +154,24 @@ pub fn allowed(key: &str) -> &'static str {
         "sd_criterion" => "between-animal SD of the criterion, ≥ 0 (default 0)",
         "correlation" => {
             "correlation of an animal's d′ and criterion, strictly between −1 and 1 (default 0)"
+        }
+        "sd_criterion_shift" => {
+            "between-animal SD of each animal's criterion shift from the first condition to the others, ≥ 0 (default 0); needs a design with two or more conditions"
+        }
+        "correlation_criterion_shift" => {
+            "correlation of an animal's criterion shift with its criterion deviation, strictly between −1 and 1 (default 0)"
+        }
+        "sd_d_prime_change" => {
+            "between-animal SD of each animal's d′ change from the first condition to the others, ≥ 0 (default 0); needs a design with two or more conditions"
+        }
+        "correlation_d_prime_change" => {
+            "correlation of an animal's d′ change with its d′ deviation, strictly between −1 and 1 (default 0)"
+        }
+        "sd_ln_sigma" => {
+            "between-animal SD of ln σ (σ log-normal around the plan's σ), 0 to 2 (default 0)"
+        }
+        "sd_lapse_rate" => {
+            "between-animal SD of the lapse rate (beta around [observer] lapse_rate λ), ≥ 0 and below √(λ(1 − λ)) (default 0)"
         }
         "trial_cap" => {
             "the most trials one animal can be given, a whole number at least as large as the smallest trial count of some design"

@@ -134,6 +134,12 @@ pub struct RawAnimals {
     pub sd_d_prime: Option<Spanned<f64>>,
     pub sd_criterion: Option<Spanned<f64>>,
     pub correlation: Option<Spanned<f64>>,
+    pub sd_criterion_shift: Option<Spanned<f64>>,
+    pub correlation_criterion_shift: Option<Spanned<f64>>,
+    pub sd_d_prime_change: Option<Spanned<f64>>,
+    pub correlation_d_prime_change: Option<Spanned<f64>>,
+    pub sd_ln_sigma: Option<Spanned<f64>>,
+    pub sd_lapse_rate: Option<Spanned<f64>>,
     pub trial_cap: Option<Spanned<i64>>,
 }
 

@@ -106,7 +106,7 @@ fn trials_of(conditions: &[ConditionTrials], condition: Option<&str>) -> (u32, u
 }
 
 /// Full precision, empty for undefined values (so spreadsheets read NA, not text).
-fn num(x: f64) -> String {
+pub(crate) fn num(x: f64) -> String {
     if x.is_finite() {
         format!("{x}")
     } else {

@@ -6,7 +6,7 @@ use super::CAUTION;
 use super::style::{new_table, right_align};
 use crate::design::goals::TestKind;
 use crate::engine::Share;
-use crate::groups::summary::TestSummary;
+use crate::groups::summary::GroupTestSummary;
 use crate::groups::{DesignGroups, GridCell, GroupReport, GroupTest};
 use crate::plan::Plan;
 use crate::vocab::Sided;
@@ -90,22 +90,24 @@ fn sign(sided: Sided) -> &'static str {
 
 /// What a test asks, in words.
 pub fn describe(test: &GroupTest) -> String {
-    use crate::groups::hypotheses::Contrast;
+    use crate::groups::hypotheses::GroupContrast;
     let s = sign(test.sided);
     match test.contrast {
-        Contrast::Criterion { .. } if test.kind == TestKind::IdealCriterion => {
+        GroupContrast::Criterion { .. } if test.kind == TestKind::IdealCriterion => {
             format!(
                 "mean criterion {s} the ideal observer's ({:+.2})",
                 test.null
             )
         }
-        Contrast::Criterion { .. } => format!("mean criterion {s} {}", test.null),
-        Contrast::CriterionShift { .. } => format!("mean criterion shift between conditions {s} 0"),
-        Contrast::SensitivityDifference { .. } => {
+        GroupContrast::Criterion { .. } => format!("mean criterion {s} {}", test.null),
+        GroupContrast::CriterionShift { .. } => {
+            format!("mean criterion shift between conditions {s} 0")
+        }
+        GroupContrast::SensitivityDifference { .. } => {
             format!("mean d′ difference between conditions {s} 0")
         }
-        Contrast::LnSigma => format!("mean ln σ {s} 0 (σ {s} 1)"),
-        Contrast::GroupDifference { shift, .. } => format!(
+        GroupContrast::LnSigma => format!("mean ln σ {s} 0 (σ {s} 1)"),
+        GroupContrast::GroupDifference { shift, .. } => format!(
             "second population's mean criterion − the first's {s} 0 (half the animals from each; true shift {shift:+.2})"
         ),
     }
@@ -176,13 +178,13 @@ fn design_block(out: &mut String, r: &GroupReport, d: &DesignGroups) {
                 format!("{:.2} · {:.2}", t.pooled.value, t.pooled_false.value)
             })
         );
-        let worst = |f: fn(&TestSummary) -> f64| {
+        let worst = |f: fn(&GroupTestSummary) -> f64| {
             d.cells
                 .iter()
                 .map(|c| f(&c.summary.tests[i]))
                 .fold(f64::NAN, f64::max)
         };
-        let best = |f: fn(&TestSummary) -> f64| {
+        let best = |f: fn(&GroupTestSummary) -> f64| {
             d.cells
                 .iter()
                 .map(|c| f(&c.summary.tests[i]))
@@ -214,7 +216,12 @@ fn design_block(out: &mut String, r: &GroupReport, d: &DesignGroups) {
         "{}",
         grid_table(d, |c| {
             let s = &c.summary.criterion;
-            format!("{:.3} · {:.1}%", s.mean_se.value, 100.0 * s.coverage.value)
+            // A cell where no study had two usable animals has nothing to show.
+            if s.mean_se.value.is_finite() && s.coverage.value.is_finite() {
+                format!("{:.3} · {:.1}%", s.mean_se.value, 100.0 * s.coverage.value)
+            } else {
+                "– · –".to_string()
+            }
         })
     );
     for line in super::coverage_notes::group_notes(r, d) {
@@ -248,6 +255,17 @@ fn precision_reading(out: &mut String, r: &GroupReport, d: &DesignGroups) {
     let (Some(small), Some(large)) = (d.cells.first(), d.cells.last()) else {
         return;
     };
+    let usable = |c: &crate::groups::GridCell| c.summary.criterion.half_width.value.is_finite();
+    if !d.cells.iter().any(usable) {
+        let _ = writeln!(
+            out,
+            "Reading: {}: no usable group estimate at any count — no study had two animals with a fit \
+             (see \"Left out\"), so the group mean criterion cannot be estimated with this record; \
+             change the record (a full record, or a known or censused base rate) rather than the numbers.",
+            d.design
+        );
+        return;
+    }
     let level = 100.0 * r.confidence;
     let hw = |x: f64| crate::report::format::number(x, 2);
     let one = d.cells.len() == 1;

@@ -28,6 +28,7 @@ pub mod reading;
 pub mod report_page;
 pub mod shard_text;
 pub mod style;
+pub mod tables;
 pub mod terminal;
 pub mod verdict;
 pub mod workload_text;

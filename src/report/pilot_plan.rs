@@ -3,7 +3,7 @@
 //! the pilot file it came from. The user adds hypotheses and targets.
 
 use crate::pilot::PilotAnalysis;
-use crate::pilot::population::{Interval, MeanEstimate, SdEstimate};
+use crate::pilot::population::{MeanEstimate, PopulationInterval, SdEstimate};
 use std::fmt::Write;
 
 /// Largest correlation the skeleton writes (the plan needs |ρ| < 1).
@@ -13,7 +13,7 @@ fn quoted(s: &str) -> String {
     toml::Value::String(s.to_string()).to_string()
 }
 
-fn interval(i: &Interval) -> String {
+fn interval(i: &PopulationInterval) -> String {
     format!("{:.3} to {:.3}", i.low, i.high)
 }
 

@@ -6,7 +6,7 @@ use super::format::number;
 use super::style::{new_table, right_align};
 use crate::pilot::PilotAnalysis;
 use crate::pilot::animal_fit::NoFit;
-use crate::pilot::population::{Interval, SdEstimate};
+use crate::pilot::population::{PopulationInterval, SdEstimate};
 use std::fmt::Write;
 use std::path::Path;
 
@@ -15,7 +15,7 @@ pub const METHODS: &str = "Means: Student t over animals. Between-animal SDs: me
 (DerSimonian & Laird 1986): the spread of the animals' estimates minus their mean sampling variance, \
 truncated at 0, with a chi-square interval (Viechtbauer 2007). Correlation: the values not rejected by a simulated test of the estimates' correlation (test inversion).";
 
-fn interval(i: &Interval) -> String {
+fn interval(i: &PopulationInterval) -> String {
     format!("{} to {}", number(i.low, 2), number(i.high, 2))
 }
 

@@ -266,7 +266,7 @@ fn power_table(rows: &[&ScenarioSummary]) -> PageBlock {
 pub fn written(folder: &std::path::Path, files: &[String]) -> String {
     let figures = files.iter().filter(|f| f.starts_with(FIGURE_DIR)).count();
     format!(
-        "Wrote the report folder {}: open index.html in a browser; report.md and justification.md are for pasting; {figures} figures as SVG under {FIGURE_DIR}/; results.csv, results.json and plan.toml beside them.\nCaution: {CAUTION}\n",
+        "Wrote the report folder {}: open index.html in a browser; report.md and justification.md are for pasting; {figures} figures as SVG under {FIGURE_DIR}/; results.csv, results.json and plan.toml beside them; every table as CSV under tables/.\nCaution: {CAUTION}\n",
         folder.display()
     )
 }

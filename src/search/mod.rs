@@ -86,11 +86,24 @@ pub enum SearchOutcome {
     NoTargets,
 }
 
+/// One Monte Carlo evaluation of the search: a trial count and every target's value there.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SearchPoint {
+    /// Trials per condition.
+    pub trials: u32,
+    pub values: Vec<TargetValue>,
+    /// Whether every target is met at this count.
+    pub met: bool,
+}
+
 /// The search result of one design.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct SearchResult {
     pub design: String,
     pub outcome: SearchOutcome,
+    /// Every Monte Carlo evaluation, in the order the search made them (the answer's among
+    /// them); empty when the design has no targets.
+    pub evaluated: Vec<SearchPoint>,
 }
 
 /// Targets applying to a design, with the contrasts behind its power targets.
@@ -237,12 +250,13 @@ pub fn search_design(
 ) -> Result<SearchResult, RunError> {
     let design = &plan.designs()[d];
     let (targets, contrasts) = targets_for(plan, design);
-    let result = |outcome| SearchResult {
+    let result = |outcome, evaluated| SearchResult {
         design: design.name.clone(),
         outcome,
+        evaluated,
     };
     if targets.is_empty() {
-        return Ok(result(SearchOutcome::NoTargets));
+        return Ok(result(SearchOutcome::NoTargets, Vec::new()));
     }
     let half_widths: Vec<(Quantity, f64)> = targets
         .iter()
@@ -279,17 +293,22 @@ pub fn search_design(
         n = ((f64::from(n) * 1.25).ceil() as u32).min(max);
     }
     // 2. Confirm with Monte Carlo: find a failing and a passing count, then bisect.
-    let mut evaluations = 0;
+    let mut evaluated: Vec<SearchPoint> = Vec::new();
     let mut eval = |n: u32| -> Result<(bool, Vec<TargetValue>), RunError> {
-        evaluations += 1;
         progress(Event::Start(Phase::SearchRound {
             design: design.name.clone(),
-            round: evaluations,
+            round: evaluated.len() as u32 + 1,
             trials: n,
         }));
         progress(Event::Planned(plan.study().experiments));
         let v = evaluate(plan, d, n, &targets, progress)?;
-        Ok((v.iter().all(|x| x.met), v))
+        let met = v.iter().all(|x| x.met);
+        evaluated.push(SearchPoint {
+            trials: n,
+            values: v.clone(),
+            met,
+        });
+        Ok((met, v))
     };
     let start = asymptotic_trials.unwrap_or(max).clamp(lo_valid, max);
     let (mut pass, mut pass_values, mut fail) = (None, Vec::new(), None);
@@ -327,10 +346,14 @@ pub fn search_design(
             n = upper;
         }
         if pass.is_none() {
-            return Ok(result(SearchOutcome::NotReached {
-                max_trials: max,
-                reasons: not_reached(plan, design, &targets, &last, max),
-            }));
+            let reasons = not_reached(plan, design, &targets, &last, max);
+            return Ok(result(
+                SearchOutcome::NotReached {
+                    max_trials: max,
+                    reasons,
+                },
+                evaluated,
+            ));
         }
     }
     let mut hi = pass.unwrap_or(lo_valid);
@@ -356,14 +379,18 @@ pub fn search_design(
         &binding,
         hi,
     );
-    Ok(result(SearchOutcome::Found {
-        trials: hi,
-        band,
-        binding,
-        values: pass_values,
-        asymptotic_trials,
-        evaluations,
-    }))
+    let evaluations = evaluated.len() as u32;
+    Ok(result(
+        SearchOutcome::Found {
+            trials: hi,
+            band,
+            binding,
+            values: pass_values,
+            asymptotic_trials,
+            evaluations,
+        },
+        evaluated,
+    ))
 }
 
 /// The target closest to failing at the answer (smallest relative margin).

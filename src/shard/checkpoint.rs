@@ -29,7 +29,7 @@ pub static INTERRUPTED: AtomicBool = AtomicBool::new(false);
 
 /// How a checkpointed run of the fixed points ended.
 #[derive(Debug)]
-pub enum Outcome {
+pub enum CheckpointOutcome {
     /// Every chunk is done: the totals, as a merge would give them.
     Done(MergedTallies),
     /// Stopped by a signal; `saved` of `total` chunks are in the checkpoint.
@@ -153,7 +153,7 @@ pub fn run_checkpointed(
     path: &Path,
     resumed: Option<PartFile>,
     progress: &Progress<'_>,
-) -> Result<Outcome, ShardError> {
+) -> Result<CheckpointOutcome, ShardError> {
     let study = plan.study();
     let (seed, experiments) = (study.seed, study.experiments);
     let points = fixed_points(plan)?;
@@ -266,7 +266,7 @@ pub fn run_checkpointed(
     // there loses none of them.
     save(path, &file)?;
     let totals = fold(plan, &points, vec![file])?;
-    Ok(Outcome::Done(totals))
+    Ok(CheckpointOutcome::Done(totals))
 }
 
 /// Spaces the saves and stops at an interruption.
@@ -281,7 +281,7 @@ impl Saver {
         path: &Path,
         file: &PartFile,
         total: usize,
-    ) -> Result<Option<Outcome>, ShardError> {
+    ) -> Result<Option<CheckpointOutcome>, ShardError> {
         let interrupted = INTERRUPTED.load(Ordering::Relaxed);
         if interrupted || self.last.elapsed() >= self.gap {
             let start = Instant::now();
@@ -289,7 +289,7 @@ impl Saver {
             self.gap = (start.elapsed() * 50).max(Duration::from_secs(1));
             self.last = Instant::now();
         }
-        Ok(interrupted.then(|| Outcome::Interrupted {
+        Ok(interrupted.then(|| CheckpointOutcome::Interrupted {
             saved: file.chunk_total(),
             total,
         }))

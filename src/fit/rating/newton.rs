@@ -39,7 +39,7 @@ const LN_L_NOISE: f64 = 1e-12;
 const MAX_DAMPING: u32 = 30;
 
 /// Where the solver stopped.
-pub(crate) struct Outcome {
+pub(crate) struct NewtonOutcome {
     pub status: FitStatus,
     pub iterations: u32,
     pub params: RatingParams,
@@ -55,7 +55,7 @@ pub(crate) fn maximise(
     table: &RatingTable,
     start: &RatingParams,
     options: &RatingFitOptions,
-) -> Outcome {
+) -> NewtonOutcome {
     let layout = Layout {
         categories: table.categories(),
         fix_sigma: options.fix_sigma,
@@ -66,7 +66,7 @@ pub(crate) fn maximise(
     let mut evals = [Evaluation::zero(), Evaluation::zero()];
     let mut current = 0;
     if !evaluate_into(table, &params, &mut evals[current]) {
-        return Outcome {
+        return NewtonOutcome {
             status: FitStatus::NumericalFailure,
             iterations: 0,
             params,
@@ -136,7 +136,7 @@ pub(crate) fn maximise(
         let ev = &evals[current];
         layout.chain_rule(&params, &ev.gradient, &ev.hessian, &mut g, &mut h);
     };
-    Outcome {
+    NewtonOutcome {
         status,
         iterations,
         params,

@@ -301,6 +301,8 @@ fn animals(ctx: &Ctx, a: &RawAnimals, designs: &[Design]) -> Result<Animals, Pla
         sd_d_prime: sd(&a.sd_d_prime, "sd_d_prime")?,
         sd_criterion: sd(&a.sd_criterion, "sd_criterion")?,
         correlation,
+        // Filled in by `animal_slopes`, which needs the observer's lapse rate.
+        slopes: Default::default(),
         trial_cap,
     })
 }

@@ -1,9 +1,11 @@
 //! From the raw file to a trusted [`Plan`]: every range and consistency check, once.
 //!
 //! One file per plan section: `study`, `observer`, `design` (with `conditions` and the
-//! rating `scale`) and `goals` (hypotheses, targets, animals, budget). This file holds the
-//! error builder they share and the order in which the sections are checked.
+//! rating `scale`), `goals` (hypotheses, targets, animals, budget) and `animal_slopes` (the
+//! `[animals]` slope, σ and lapse SDs, checked against the observer's lapse rate). This file
+//! holds the error builder they share and the order in which the sections are checked.
 
+mod animal_slopes;
 mod conditions;
 mod design;
 pub(super) mod goals;
@@ -90,7 +92,10 @@ pub(super) fn validate(path: &Path, source: &str, raw: RawPlan) -> Result<Plan, 
         // The header's criterion: the ideal one for the first design's first condition.
         observer.criterion = designs[0].conditions[0].criterion;
     }
-    let goals = goals::goals(&ctx, &raw, &designs, &study, spec.payoffs)?;
+    let mut goals = goals::goals(&ctx, &raw, &designs, &study, spec.payoffs)?;
+    if let (Some(animals), Some(raw_animals)) = (goals.animals.as_mut(), raw.animals.as_ref()) {
+        animals.slopes = animal_slopes::slopes(&ctx, raw_animals, &designs, observer.lapse)?;
+    }
     Ok(Plan {
         source: path.to_path_buf(),
         study,

@@ -3,7 +3,7 @@
 //! rule a row is judged by, and the Reading lines.
 
 use super::power;
-use crate::groups::effort::{Allocation, Shortfall};
+use crate::groups::effort::{Allocation, EffortShortfall};
 use crate::groups::{DesignGroups, EffortSplit, GroupReport};
 use crate::report::format::{plain, whole};
 use crate::report::style::{new_table, right_align};
@@ -36,7 +36,7 @@ fn animals_text(a: &Allocation) -> String {
 
 /// The figure by which one animal fewer misses the targets: the first target it misses
 /// (three decimals, so a shortfall never reads as the target itself).
-fn shortfall_figure(e: &EffortSplit, s: &Shortfall) -> String {
+fn shortfall_figure(e: &EffortSplit, s: &EffortShortfall) -> String {
     let missed_power = s
         .power
         .iter()
