@@ -1,29 +1,38 @@
-//! The report page in a real headless browser (Debian's chromium, installed by
-//! `.ci/install-browser.sh`, which `.ci/run` calls): it loads with no console message,
-//! every figure is laid out with a visible size, and a screenshot is saved under `target/`
-//! (`target/tmp/report-screenshot.png`) as a CI artefact.
+//! The report page in a real headless browser (Debian's chromium): it loads with no console
+//! message, every figure is laid out with a visible size, and a screenshot is saved under
+//! `target/` (`target/tmp/report-screenshot.png`) as a CI artefact.
 //!
-//! Ignored in a plain `cargo test` (a developer's machine may lack the browser); `.ci/run`
-//! runs it with `--ignored`, and there a missing browser fails the test, saying so.
+//! Part of the plain `cargo test`: when chromium is missing the test installs it with the
+//! project's own `.ci/install-browser.sh` (Debian's package, through apt-get), and fails,
+//! saying so, when that is not possible.
 
 mod common;
 
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
-/// The browser, or a failure that says how to get it.
-fn chromium() -> PathBuf {
+fn find_chromium() -> Option<PathBuf> {
     let candidates = ["chromium", "chromium-browser"];
     std::env::var_os("PATH")
         .iter()
         .flat_map(std::env::split_paths)
         .flat_map(|dir| candidates.iter().map(move |c| dir.join(c)))
         .find(|p| p.is_file())
-        .unwrap_or_else(|| {
-            panic!(
-                "chromium is not installed, so the report page cannot be checked in a browser: run .ci/install-browser.sh (.ci/run does)"
-            )
-        })
+}
+
+/// The browser, installed by the project's script when missing, or a failure that says why.
+fn chromium() -> PathBuf {
+    if let Some(p) = find_chromium() {
+        return p;
+    }
+    let script = Path::new(env!("CARGO_MANIFEST_DIR")).join(".ci/install-browser.sh");
+    let status = Command::new("bash").arg(&script).status();
+    assert!(
+        matches!(status, Ok(s) if s.success()),
+        "chromium is not installed and {} could not install it ({status:?}), so the report page cannot be checked in a browser",
+        script.display()
+    );
+    find_chromium().expect("chromium is on PATH after .ci/install-browser.sh")
 }
 
 /// Runs headless chromium on `page` with `args`; returns (stdout, stderr).
@@ -84,7 +93,6 @@ fn attribute(dom: &str, name: &str) -> usize {
 }
 
 #[test]
-#[ignore = "needs chromium: .ci/run installs it and runs this with --ignored"]
 fn report_page_loads_cleanly_with_every_figure_visible() {
     let browser = chromium();
     let dir = common::workspace_with_plans();
