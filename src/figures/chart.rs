@@ -4,8 +4,10 @@
 //! uses its built-in width estimate, which is enough for axis labels).
 
 use super::FigureError;
-use super::palette::{INK, Marker};
+use super::palette::{INK, Marker, SHADE};
+use plotters::chart::MeshStyle;
 use plotters::coord::Shift;
+use plotters::coord::types::RangedCoordf64;
 use plotters::element::{Drawable, PointCollection};
 use plotters::prelude::*;
 use plotters_backend::{BackendCoord, DrawingErrorKind};
@@ -194,4 +196,17 @@ pub fn nice_ceiling(x: f64) -> f64 {
         .map(|m| m * p)
         .find(|&v| v >= x)
         .unwrap_or(10.0 * p)
+}
+
+/// The axis grid every linear figure uses: no minor lines, faint major lines, the figure
+/// fonts; the caller adds its axis descriptions and formatters, then draws.
+pub fn styled_mesh<'a, 'b, DB: DrawingBackend>(
+    c: &'b mut ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>,
+) -> MeshStyle<'a, 'b, RangedCoordf64, RangedCoordf64, DB> {
+    let mut mesh = c.configure_mesh();
+    mesh.light_line_style(TRANSPARENT)
+        .bold_line_style(SHADE.mix(0.4))
+        .label_style(font(12))
+        .axis_desc_style(font(13));
+    mesh
 }

@@ -4,7 +4,7 @@
 //! simulated, with the budget line, the target and the chosen allocations.
 
 use super::chart::{self, key, marker};
-use super::palette::{INK, SHADE, colour, light_text_on, marker as marker_of, sequential};
+use super::palette::{INK, colour, light_text_on, marker as marker_of, sequential};
 use super::{FigureError, Svg};
 use crate::groups::DesignGroups;
 use crate::groups::effort::Allocation;
@@ -174,14 +174,10 @@ pub fn frontier(design: &DesignGroups, name: &str) -> Result<Option<Svg>, Figure
             .x_label_area_size(44)
             .y_label_area_size(56)
             .build_cartesian_2d(x_min..x_max, y_min..1.0)?;
-        c.configure_mesh()
-            .light_line_style(TRANSPARENT)
-            .bold_line_style(SHADE.mix(0.4))
+        chart::styled_mesh(&mut c)
             .x_desc("cost (the plan's budget units)")
             .x_label_formatter(&|v| format!("{v:.0}"))
             .y_desc("power of the weakest group test")
-            .label_style(chart::font(12))
-            .axis_desc_style(chart::font(13))
             .draw()?;
         if let Some(total) = e.budget.total {
             c.draw_series(DashedLineSeries::new(

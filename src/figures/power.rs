@@ -90,14 +90,10 @@ pub fn render(inputs: &Inputs, hypothesis: &str, name: &str) -> Result<Option<Sv
             .x_label_area_size(44)
             .y_label_area_size(56)
             .build_cartesian_2d(0.0..x_max, 0.0..1.0)?;
-        c.configure_mesh()
-            .light_line_style(TRANSPARENT)
-            .bold_line_style(SHADE.mix(0.4))
+        chart::styled_mesh(&mut c)
             .x_desc("trials per condition")
             .x_label_formatter(&|v| format!("{v:.0}"))
             .y_desc("power (share of experiments rejecting H₀)")
-            .label_style(chart::font(12))
-            .axis_desc_style(chart::font(13))
             .draw()?;
         // α, for reference: where a true null's rejection rate belongs.
         c.draw_series(DashedLineSeries::new(

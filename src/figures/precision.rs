@@ -5,7 +5,7 @@
 
 use super::chart::{self, key, marker, nice_ceiling};
 use super::inputs::Inputs;
-use super::palette::{INK, SHADE, colour, marker as marker_of};
+use super::palette::{INK, colour, marker as marker_of};
 use super::{FigureError, Svg};
 use crate::infer::z_critical;
 use crate::vocab::Quantity;
@@ -118,14 +118,10 @@ pub fn render(inputs: &Inputs, d: usize, name: &str) -> Result<Option<Svg>, Figu
             .x_label_area_size(44)
             .y_label_area_size(56)
             .build_cartesian_2d(x_min..x_max, 0.0..y_max)?;
-        c.configure_mesh()
-            .light_line_style(TRANSPARENT)
-            .bold_line_style(SHADE.mix(0.4))
+        chart::styled_mesh(&mut c)
             .x_desc("trials per condition")
             .x_label_formatter(&|v| format!("{v:.0}"))
             .y_desc(&y_desc)
-            .label_style(chart::font(12))
-            .axis_desc_style(chart::font(13))
             .draw()?;
         for (i, s) in series.iter().enumerate() {
             let col = colour(i);

@@ -94,13 +94,9 @@ pub fn render(inputs: &Inputs, z_scale: bool, name: &str) -> Result<Option<Svg>,
             .x_label_area_size(44)
             .y_label_area_size(56)
             .build_cartesian_2d(lo..hi, lo..hi)?;
-        c.configure_mesh()
-            .light_line_style(TRANSPARENT)
-            .bold_line_style(SHADE.mix(0.4))
+        chart::styled_mesh(&mut c)
             .x_desc(x_desc)
             .y_desc(y_desc)
-            .label_style(chart::font(12))
-            .axis_desc_style(chart::font(13))
             .draw()?;
         c.draw_series(DashedLineSeries::new(
             vec![(lo, lo), (hi, hi)],

@@ -83,13 +83,9 @@ pub fn ellipses(inputs: &Inputs, name: &str) -> Result<Option<Svg>, FigureError>
             .x_label_area_size(44)
             .y_label_area_size(56)
             .build_cartesian_2d((x0 - px)..(x1 + px), (y0 - py)..(y1 + py))?;
-        c.configure_mesh()
-            .light_line_style(TRANSPARENT)
-            .bold_line_style(SHADE.mix(0.4))
+        chart::styled_mesh(&mut c)
             .x_desc("estimated d′ (absent-SD units)")
             .y_desc("estimated c, first condition (absent-SD units)")
-            .label_style(chart::font(12))
-            .axis_desc_style(chart::font(13))
             .draw()?;
         for (i, e) in shapes.iter().enumerate() {
             let col = colour(i);
@@ -159,14 +155,10 @@ pub fn correlation(inputs: &Inputs, name: &str) -> Result<Option<Svg>, FigureErr
             .x_label_area_size(44)
             .y_label_area_size(56)
             .build_cartesian_2d(0.0..x_max, -1.0..1.0)?;
-        c.configure_mesh()
-            .light_line_style(TRANSPARENT)
-            .bold_line_style(SHADE.mix(0.4))
+        chart::styled_mesh(&mut c)
             .x_desc("trials per condition")
             .x_label_formatter(&|v| format!("{v:.0}"))
             .y_desc("r(d̂′, ĉ) across simulated experiments")
-            .label_style(chart::font(12))
-            .axis_desc_style(chart::font(13))
             .draw()?;
         c.draw_series(std::iter::once(PathElement::new(
             vec![(0.0, 0.0), (x_max, 0.0)],
