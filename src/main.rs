@@ -12,6 +12,26 @@ use vigil::progress::{Renderer, Show};
 struct Cli {
     #[command(subcommand)]
     command: Command,
+    /// Fit the terminal report to N columns (default: the terminal's width, or 100 when
+    /// the output is not a terminal); tables wrap their cells, prose wraps on spaces.
+    #[arg(long, global = true, value_name = "N", value_parser = clap::value_parser!(u16).range(60..=1000), conflicts_with = "wide")]
+    width: Option<u16>,
+    /// Full-width tables and unwrapped lines, however wide they are.
+    #[arg(long, global = true)]
+    wide: bool,
+}
+
+impl Cli {
+    fn layout(&self) -> vigil::report::layout::Layout {
+        use vigil::report::layout::{DEFAULT_WIDTH, Layout, MIN_WIDTH, terminal_width};
+        match (self.wide, self.width) {
+            (true, _) => Layout::Wide,
+            (false, Some(n)) => Layout::Fit(usize::from(n)),
+            (false, None) => {
+                Layout::Fit(terminal_width().map_or(DEFAULT_WIDTH, |w| w.max(MIN_WIDTH)))
+            }
+        }
+    }
 }
 
 /// How a long command shows its progress on stderr.
@@ -194,6 +214,7 @@ enum Command {
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
+    vigil::report::layout::set_layout(cli.layout());
     if let Err(e) = vigil::output::cleanup_on_signals() {
         eprintln!("warning: no signal handler ({e}); an interrupt may leave temporary files");
     }

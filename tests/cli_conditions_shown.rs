@@ -11,14 +11,14 @@
 
 mod common;
 
-use common::{stderr, stdout, vigil, workspace_with_plans};
+use common::{stderr, stdout, vigil_wide, workspace_with_plans};
 use serde_json::Value;
 
 const PLAN: &str = "plans/base-rate-shift.toml";
 
 fn ok(args: &[&str]) -> (tempfile::TempDir, String) {
     let dir = workspace_with_plans();
-    let out = vigil(dir.path(), args);
+    let out = vigil_wide(dir.path(), args);
     assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
     let text = stdout(&out);
     (dir, text)

@@ -3,7 +3,7 @@
 
 mod common;
 
-use common::{stderr, stdout, vigil};
+use common::{stderr, stdout, vigil_wide};
 use std::path::{Path, PathBuf};
 
 fn sentinel() -> PathBuf {
@@ -20,7 +20,7 @@ fn reading<'a>(text: &'a str, design: &str) -> &'a str {
 #[test]
 fn sentinel_plan_separates_bias_and_sensitivity_except_with_an_unknown_base_rate() {
     let dir = tempfile::tempdir().unwrap();
-    let out = vigil(dir.path(), &["explore", sentinel().to_str().unwrap()]);
+    let out = vigil_wide(dir.path(), &["explore", sentinel().to_str().unwrap()]);
     assert!(out.status.success(), "{}", stderr(&out));
     let text = stdout(&out);
     let unknown = reading(&text, "errors, base rate unknown");
@@ -64,7 +64,7 @@ fn json_holds_every_row_with_its_verdict() {
         "--json",
         "explore.json",
     ];
-    let out = vigil(dir.path(), &args);
+    let out = vigil_wide(dir.path(), &args);
     assert!(out.status.success(), "{}", stderr(&out));
     let doc: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(dir.path().join("explore.json")).unwrap())
@@ -122,7 +122,7 @@ fn bad_grid_options_exit_2_with_a_clear_message() {
     ] {
         let mut all = vec!["explore", plan];
         all.extend(&args);
-        let out = vigil(dir.path(), &all);
+        let out = vigil_wide(dir.path(), &all);
         assert_eq!(out.status.code(), Some(2), "{args:?}: {}", stderr(&out));
         assert!(
             stderr(&out).contains(expected),

@@ -11,7 +11,7 @@
 
 mod common;
 
-use common::{stderr, stdout, vigil};
+use common::{stderr, stdout, vigil_wide};
 use serde_json::Value;
 use statrs::distribution::{ContinuousCDF, Normal};
 use std::path::Path;
@@ -130,7 +130,7 @@ fn worked_cases_are_printed_as_the_published_formula_gives() {
             "ideal.json".into(),
         ];
         let args: Vec<&str> = args.iter().map(String::as_str).collect();
-        let out = vigil(dir.path(), &args);
+        let out = vigil_wide(dir.path(), &args);
         assert!(out.status.success(), "{}", stderr(&out));
         let text = stdout(&out);
         let g = Formula::new(d, p, pay);
@@ -206,7 +206,7 @@ fn partial_adjustment_sits_a_fraction_of_the_way_to_c_opt() {
         "--json",
         "ideal.json",
     ];
-    let out = vigil(dir.path(), &args);
+    let out = vigil_wide(dir.path(), &args);
     assert!(out.status.success(), "{}", stderr(&out));
     assert!(stdout(&out).contains("at f·c_opt (f = 0.5)"));
     let doc = read_json(&dir.path().join("ideal.json"));
@@ -243,7 +243,7 @@ fn scan_shows_false_alarms_per_miss_falling_as_the_payoff_ratio_grows() {
         "--json",
         "ideal.json",
     ];
-    let out = vigil(dir.path(), &args);
+    let out = vigil_wide(dir.path(), &args);
     assert!(out.status.success(), "{}", stderr(&out));
     let text = stdout(&out);
     let reading = text
@@ -294,7 +294,7 @@ fn rejects(base: [&str; 6], extra: &[&str], needles: &[&str]) {
     args.extend(base);
     args.extend(extra);
     args.extend(["--json", "out.json"]);
-    let out = vigil(dir.path(), &args);
+    let out = vigil_wide(dir.path(), &args);
     let err = stderr(&out);
     assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
     for needle in needles {
@@ -376,7 +376,7 @@ fn unwritable_json_path_exits_2() {
         "--json",
         "no-such-folder/out.json",
     ];
-    let out = vigil(dir.path(), &args);
+    let out = vigil_wide(dir.path(), &args);
     assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
     assert!(stderr(&out).contains("the folder no-such-folder does not exist"));
 }

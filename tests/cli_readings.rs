@@ -3,12 +3,12 @@
 
 mod common;
 
-use common::{plans_dir, stdout, vigil};
+use common::{plans_dir, stdout, vigil_wide};
 
 fn run(dir: &std::path::Path, plan: &str, extra: &[&str]) -> String {
     let mut args = vec!["run", plan, "--quiet", "--experiments", "200"];
     args.extend_from_slice(extra);
-    let out = vigil(dir, &args);
+    let out = vigil_wide(dir, &args);
     assert!(out.status.success(), "{}", common::stderr(&out));
     stdout(&out)
 }
@@ -51,7 +51,7 @@ fn run_and_explore_judge_by_the_plans_own_correlation_target() {
          [[design]]\nname = \"d\"\npresence = 0.3\ntrials = [80, 160]\n\
          [targets]\nmax_correlation = 0.2\n",
     );
-    let out = vigil(dir.path(), &["explore", &plan]);
+    let out = vigil_wide(dir.path(), &["explore", &plan]);
     let e = stdout(&out);
     let er = reading(&e, "d");
     // Old: explore judged "|r(d′, c)| is below 0.5" whatever the plan's target.
@@ -103,7 +103,7 @@ fn saturated_scale_is_flagged_with_its_fix_and_no_bare_side_by_side_verdict() {
         "{text}"
     );
     assert!(text.contains("* not a like-for-like result"), "{text}");
-    let e = stdout(&vigil(dir.path(), &["explore", &plan]));
+    let e = stdout(&vigil_wide(dir.path(), &["explore", &plan]));
     assert!(reading(&e, "3-step").contains("saturated"), "{e}");
 }
 
@@ -134,7 +134,7 @@ fn extreme_rates_are_described_by_what_was_done_with_them() {
 #[test]
 fn exact_output_claims_no_monte_carlo_error() {
     let dir = tempfile::tempdir().unwrap();
-    let out = vigil(
+    let out = vigil_wide(
         dir.path(),
         &[
             "run",
@@ -152,7 +152,7 @@ fn exact_output_claims_no_monte_carlo_error() {
 #[test]
 fn unknown_base_rate_range_of_d_prime_stops_at_zero() {
     let dir = tempfile::tempdir().unwrap();
-    let text = stdout(&vigil(
+    let text = stdout(&vigil_wide(
         dir.path(),
         &["explore", &bundled("sentinel-error-records.toml")],
     ));
@@ -168,7 +168,7 @@ fn unknown_base_rate_range_of_d_prime_stops_at_zero() {
 #[test]
 fn check_shows_every_section_with_plain_numbers() {
     let dir = tempfile::tempdir().unwrap();
-    let colony = stdout(&vigil(
+    let colony = stdout(&vigil_wide(
         dir.path(),
         &["check", &bundled("predator-model-colony.toml")],
     ));
@@ -188,7 +188,7 @@ fn check_shows_every_section_with_plain_numbers() {
         colony.contains("lapse_rate = 0.04, lapse_yes = 0.5"),
         "{colony}"
     );
-    let shift = stdout(&vigil(
+    let shift = stdout(&vigil_wide(
         dir.path(),
         &["check", &bundled("base-rate-shift.toml")],
     ));
@@ -206,7 +206,7 @@ fn check_shows_every_section_with_plain_numbers() {
 #[test]
 fn json_uses_the_plans_spelling() {
     let dir = tempfile::tempdir().unwrap();
-    let out = vigil(
+    let out = vigil_wide(
         dir.path(),
         &[
             "explore",
@@ -239,7 +239,7 @@ fn side_by_side_names_its_spread_sd() {
 #[test]
 fn a_small_census_is_advised_a_larger_one() {
     let dir = tempfile::tempdir().unwrap();
-    let text = stdout(&vigil(
+    let text = stdout(&vigil_wide(
         dir.path(),
         &["explore", &bundled("base-rate-shift.toml")],
     ));

@@ -11,7 +11,7 @@
 
 mod common;
 
-use common::{stderr, stdout, vigil, vigil_env, workspace_with_plans};
+use common::{stderr, stdout, vigil_env, vigil_wide, workspace_with_plans};
 use std::collections::HashMap;
 use std::path::Path;
 
@@ -84,7 +84,7 @@ fn run_twice(dir: &Path, args: &[&str]) -> String {
         std::fs::create_dir(&tb).unwrap();
         let mut a: Vec<&str> = args.to_vec();
         let name = format!("tb{threads}");
-        a.extend(["--tables", &name]);
+        a.extend(["--tables", &name, "--wide"]);
         let out = vigil_env(dir, &a, &[("RAYON_NUM_THREADS", threads)]);
         assert!(out.status.success(), "{}", stderr(&out));
         let bytes: Vec<Vec<u8>> = FILES
@@ -294,7 +294,7 @@ fn a_merged_split_run_writes_the_same_tables() {
     std::fs::create_dir(dir.path().join("whole")).unwrap();
     std::fs::create_dir(dir.path().join("merged")).unwrap();
     let ok = |args: &[&str]| {
-        let out = vigil(dir.path(), args);
+        let out = vigil_wide(dir.path(), args);
         assert!(out.status.success(), "{args:?}: {}", stderr(&out));
     };
     ok(&[
@@ -344,7 +344,7 @@ fn a_merged_split_run_writes_the_same_tables() {
 fn refused(dir: &Path, extra: &[&str], why: &str, keep: &[&str]) {
     let mut args = vec!["run", "plans/playback-yes-no.toml", "-q"];
     args.extend(extra);
-    let out = vigil(dir, &args);
+    let out = vigil_wide(dir, &args);
     assert_eq!(out.status.code(), Some(2), "{extra:?}: {}", stderr(&out));
     let err = stderr(&out);
     assert!(err.contains("--tables") || err.contains("--part"), "{err}");

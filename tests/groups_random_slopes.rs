@@ -9,7 +9,7 @@
 
 mod common;
 
-use common::{stderr, vigil};
+use common::{stderr, vigil_wide};
 use std::path::Path;
 use vigil::groups::run_groups;
 use vigil::plan::Plan;
@@ -85,7 +85,7 @@ fn refused(slope_keys: &str, key: &str) {
     let line = text.lines().position(|l| l == first).unwrap() + 1;
     let dir = tempfile::tempdir().unwrap();
     std::fs::write(dir.path().join("bad.toml"), &text).unwrap();
-    let out = vigil(dir.path(), &["check", "bad.toml"]);
+    let out = vigil_wide(dir.path(), &["check", "bad.toml"]);
     let msg = stderr(&out);
     assert_eq!(out.status.code(), Some(2), "{msg}");
     assert!(!msg.contains("panicked"), "{msg}");
@@ -164,14 +164,14 @@ fn the_slope_sds_are_reported() {
     let text = plan("sd_criterion_shift = 0.25\ncorrelation_criterion_shift = 0.3")
         .replace(&format!("experiments = {EXPERIMENTS}"), "experiments = 100");
     std::fs::write(&path, text).unwrap();
-    let out = vigil(dir.path(), &["run", "slopes.toml"]);
+    let out = vigil_wide(dir.path(), &["run", "slopes.toml"]);
     assert!(out.status.success(), "{}", stderr(&out));
     let terminal = String::from_utf8_lossy(&out.stdout);
     assert!(
         terminal.contains("criterion shift between conditions 0.25 (correlation with its c +0.30)"),
         "{terminal}"
     );
-    let json = vigil(dir.path(), &["run", "slopes.toml", "--json", "-"]);
+    let json = vigil_wide(dir.path(), &["run", "slopes.toml", "--json", "-"]);
     assert!(json.status.success(), "{}", stderr(&json));
     let v: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
     let text = v.to_string();

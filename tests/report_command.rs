@@ -3,7 +3,7 @@
 
 mod common;
 
-use common::{stderr, stdout, vigil, workspace_with_plans};
+use common::{stderr, stdout, vigil_wide, workspace_with_plans};
 use std::collections::BTreeSet;
 use std::path::Path;
 
@@ -66,9 +66,9 @@ fn power_triples(text: &str) -> BTreeSet<String> {
 fn justification_states_exactly_the_verdict_numbers() {
     let dir = workspace_with_plans();
     let plan = "plans/base-rate-shift.toml";
-    let run = vigil(dir.path(), &["run", plan, "--quiet"]);
+    let run = vigil_wide(dir.path(), &["run", plan, "--quiet"]);
     assert!(run.status.success(), "{}", stderr(&run));
-    let report = vigil(dir.path(), &["report", plan, "--out", "out", "--quiet"]);
+    let report = vigil_wide(dir.path(), &["report", plan, "--out", "out", "--quiet"]);
     assert!(report.status.success(), "{}", stderr(&report));
     let rows = verdict_rows(&stdout(&run));
     assert_eq!(rows.len(), 3, "{rows:?}");
@@ -110,7 +110,7 @@ fn justification_states_exactly_the_verdict_numbers() {
 #[test]
 fn report_folder_holds_a_self_contained_page_and_every_file() {
     let dir = workspace_with_plans();
-    let out = vigil(
+    let out = vigil_wide(
         dir.path(),
         &[
             "report",
@@ -162,7 +162,7 @@ fn report_folder_holds_a_self_contained_page_and_every_file() {
     let mut csv = csv::Reader::from_path(rep.join("results.csv")).unwrap();
     assert!(csv.records().count() > 0);
     // A second run replaces the folder vigil wrote, leaving no temporary siblings.
-    let again = vigil(
+    let again = vigil_wide(
         dir.path(),
         &[
             "report",
@@ -187,7 +187,7 @@ fn a_bad_folder_fails_before_any_simulation_with_exit_2() {
     let dir = workspace_with_plans();
     // 10⁸ experiments would run for hours: a prompt exit proves nothing was simulated.
     let slow = ["--experiments", "100000000", "-q"];
-    let missing = vigil(
+    let missing = vigil_wide(
         dir.path(),
         &[
             &[
@@ -206,7 +206,7 @@ fn a_bad_folder_fails_before_any_simulation_with_exit_2() {
     // A folder of the user's is never replaced.
     std::fs::create_dir(dir.path().join("mine")).unwrap();
     std::fs::write(dir.path().join("mine/notes.txt"), "keep").unwrap();
-    let theirs = vigil(
+    let theirs = vigil_wide(
         dir.path(),
         &[
             &["report", "plans/base-rate-shift.toml", "--out", "mine"][..],
@@ -237,7 +237,7 @@ fn values_source_is_quoted_and_checked() {
         "the plan has a [study] line"
     );
     std::fs::write(dir.path().join("p.toml"), &text).unwrap();
-    let out = vigil(
+    let out = vigil_wide(
         dir.path(),
         &[
             "report",
@@ -257,7 +257,7 @@ fn values_source_is_quoted_and_checked() {
     );
     let bad = text.replace("pilot season 2025, 9 birds (invented)", "  ");
     std::fs::write(dir.path().join("bad.toml"), bad).unwrap();
-    let out = vigil(dir.path(), &["check", "bad.toml"]);
+    let out = vigil_wide(dir.path(), &["check", "bad.toml"]);
     assert_eq!(out.status.code(), Some(2));
     let err = stderr(&out);
     assert!(
@@ -276,7 +276,7 @@ fn readme_figure_is_what_the_command_draws() {
     assert!(readme.contains("docs/figures/colony-group-power.svg"));
     let dir = workspace_with_plans();
     let args: Vec<&str> = command.split(' ').skip(1).chain(["-q"]).collect();
-    let out = vigil(dir.path(), &args);
+    let out = vigil_wide(dir.path(), &args);
     assert!(out.status.success(), "{}", stderr(&out));
     let drawn = std::fs::read_to_string(
         dir.path()

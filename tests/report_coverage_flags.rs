@@ -39,6 +39,8 @@ fn check_run_flags(name: &str) -> usize {
     let p = plan(name, 300);
     let summaries = run_plan(&p, RunOptions::default(), &|_| {}).unwrap();
     let advice = vigil::analytic::advice::RunAdvice::of(&p, &summaries);
+    // Whole note lines: the unwrapped layout (wrapping is tested in tests/terminal_width.rs).
+    vigil::report::layout::set_layout(vigil::report::layout::Layout::Wide);
     let text = terminal::render_run(&p, &summaries, &[], None, &advice);
     let level = p.study().confidence;
     let notes = note_lines(&text);

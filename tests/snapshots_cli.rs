@@ -238,3 +238,22 @@ fn ideal_common_hawks_scan() {
         &["ideal.json"],
     );
 }
+
+// `--wide` keeps the full, unwrapped layout: this snapshot's text is the 100-column
+// snapshot's layout before the terminal was fitted to a width (checked when it was added:
+// its body equalled the earlier `base-rate-shift__run` snapshot byte for byte).
+#[test]
+fn run_wide_base_rate_shift() {
+    snapshot_command(
+        "base-rate-shift__run_wide",
+        &[
+            "run",
+            "plans/base-rate-shift.toml",
+            "--quiet",
+            "--experiments",
+            "300",
+            "--wide",
+        ],
+        &[],
+    );
+}

@@ -104,7 +104,7 @@ pub fn render(path: &Path, plan: &Plan) -> String {
         let _ = writeln!(out, "{EXPECTED_NOTE}");
     }
     sections(&mut out, plan);
-    out
+    super::layout::wrap_prose(&out)
 }
 
 /// Hypotheses, targets, animals and budget, one line each, when the plan has them.

@@ -180,10 +180,10 @@ pub fn render(comparisons: &[Comparison], level: f64) -> String {
             "trials",
             "SD d′ yes/no",
             "SD d′ rating",
-            "ratio",
+            "ratio d′",
             "SD c yes/no",
             "SD c rating",
-            "ratio",
+            "ratio c",
             "RMSE ratio d′",
             "RMSE ratio c",
         ]);

@@ -47,7 +47,7 @@ pub fn render(plan: &Plan, scans: &[DesignScan]) -> String {
         design_block(&mut out, plan, scan);
     }
     let _ = writeln!(out, "Caution: {CAUTION}");
-    out
+    super::layout::wrap_prose(&out)
 }
 
 fn design_block(out: &mut String, plan: &Plan, scan: &DesignScan) {

@@ -118,7 +118,7 @@ pub fn render(fig: &IdealFigures) -> String {
     }
     let _ = writeln!(out);
     let _ = writeln!(out, "Assumes {ASSUMPTIONS}.");
-    out
+    super::layout::wrap_prose(&out)
 }
 
 /// One table cell from an outcome and d′.

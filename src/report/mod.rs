@@ -17,6 +17,7 @@ pub mod ideal_text;
 pub mod identification_text;
 pub mod json_out;
 pub mod justification;
+pub mod layout;
 pub mod output_folder;
 pub mod page;
 pub mod page_html;

@@ -112,7 +112,7 @@ pub fn render(a: &PilotAnalysis, plan_out: Option<&Path>) -> String {
         "Caution: {CAUTION} A pilot of {} animals pins these values only loosely: plan for the intervals, not only the estimates.",
         p.animals
     );
-    out
+    super::layout::wrap_prose(&out)
 }
 
 fn in_condition(c: &str) -> String {

@@ -141,12 +141,11 @@ pub fn build(c: &ReportContent) -> Page {
         }
     }
     b.push(PageBlock::Heading(2, "The whole terminal report".into()));
-    b.push(PageBlock::Pre(terminal::render_run(
-        plan,
-        c.summaries,
-        c.searches,
-        c.groups,
-        c.advice,
+    // At the default width whatever the terminal is, so the page never depends on the
+    // window it was made in.
+    b.push(PageBlock::Pre(super::layout::with_layout(
+        super::layout::Layout::default(),
+        || terminal::render_run(plan, c.summaries, c.searches, c.groups, c.advice),
     )));
     b.push(PageBlock::Heading(2, "The resolved plan".into()));
     b.push(PageBlock::Paragraph(
@@ -265,8 +264,8 @@ fn power_table(rows: &[&ScenarioSummary]) -> PageBlock {
 /// What `vigil report` prints when the folder is written.
 pub fn written(folder: &std::path::Path, files: &[String]) -> String {
     let figures = files.iter().filter(|f| f.starts_with(FIGURE_DIR)).count();
-    format!(
+    super::layout::wrap_prose(&format!(
         "Wrote the report folder {}: open index.html in a browser; report.md and justification.md are for pasting; {figures} figures as SVG under {FIGURE_DIR}/; results.csv, results.json and plan.toml beside them; every table as CSV under tables/.\nCaution: {CAUTION}\n",
         folder.display()
-    )
+    ))
 }

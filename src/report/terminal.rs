@@ -32,7 +32,7 @@ pub fn render_run(
         out.push_str(&super::groups_text::render_section(plan, g));
     }
     let _ = writeln!(out, "Caution: {CAUTION}");
-    out
+    super::layout::wrap_prose(&out)
 }
 
 /// Header, one block per design and the side-by-side comparison.

@@ -34,6 +34,15 @@ pub fn vigil(dir: &Path, args: &[&str]) -> Output {
     vigil_env(dir, args, &[])
 }
 
+/// Runs `vigil` with `args` and `--wide` in `dir`: for tests of what the report says, which
+/// read whole lines and whole tables (the fitted 100-column layout is pinned by the
+/// snapshots and `tests/terminal_width.rs`).
+pub fn vigil_wide(dir: &Path, args: &[&str]) -> Output {
+    let mut all = args.to_vec();
+    all.push("--wide");
+    vigil_env(dir, &all, &[])
+}
+
 /// Standard error as text.
 pub fn stderr(out: &Output) -> String {
     String::from_utf8_lossy(&out.stderr).into_owned()
