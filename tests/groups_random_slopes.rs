@@ -154,3 +154,26 @@ sd_criterion_shift = 0.3
 "#
     .into()
 }
+
+// The terminal header and the JSON carry the slope SDs the plan sets, so a reader sees
+// which between-animal variation the power figure includes.
+#[test]
+fn the_slope_sds_are_reported() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("slopes.toml");
+    let text = plan("sd_criterion_shift = 0.25\ncorrelation_criterion_shift = 0.3")
+        .replace(&format!("experiments = {EXPERIMENTS}"), "experiments = 100");
+    std::fs::write(&path, text).unwrap();
+    let out = vigil(dir.path(), &["run", "slopes.toml"]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let terminal = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        terminal.contains("criterion shift between conditions 0.25 (correlation with its c +0.30)"),
+        "{terminal}"
+    );
+    let json = vigil(dir.path(), &["run", "slopes.toml", "--json", "-"]);
+    assert!(json.status.success(), "{}", stderr(&json));
+    let v: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
+    let text = v.to_string();
+    assert!(text.contains("\"sd_criterion_shift\":0.25"), "{text}");
+}

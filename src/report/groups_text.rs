@@ -40,6 +40,31 @@ pub fn render_section(plan: &Plan, report: &GroupReport) -> String {
     out
 }
 
+/// The between-animal variation beyond d′ and c (random slopes, σ, lapse rate) in words,
+/// naming only what the plan sets; `None` when every animal shares the plan's values.
+pub fn slopes_phrase(s: &crate::groups::population::Slopes) -> Option<String> {
+    let mut parts = Vec::new();
+    if s.sd_criterion_shift > 0.0 {
+        parts.push(format!(
+            "SD of an animal's criterion shift between conditions {:.2} (correlation with its c {:+.2})",
+            s.sd_criterion_shift, s.correlation_criterion_shift
+        ));
+    }
+    if s.sd_d_prime_change > 0.0 {
+        parts.push(format!(
+            "SD of its d′ change {:.2} (correlation with its d′ {:+.2})",
+            s.sd_d_prime_change, s.correlation_d_prime_change
+        ));
+    }
+    if s.sd_ln_sigma > 0.0 {
+        parts.push(format!("SD of ln σ {:.2}", s.sd_ln_sigma));
+    }
+    if s.sd_lapse_rate > 0.0 {
+        parts.push(format!("SD of the lapse rate {:.3}", s.sd_lapse_rate));
+    }
+    (!parts.is_empty()).then(|| format!("between animals also: {}", parts.join(", ")))
+}
+
 fn header(out: &mut String, plan: &Plan, r: &GroupReport) {
     let o = plan.observer();
     let p = &r.population;
@@ -47,6 +72,9 @@ fn header(out: &mut String, plan: &Plan, r: &GroupReport) {
         "Population: d′ = {:.2} (between-animal SD {:.2}), c = {:+.2} (SD {:.2}), correlation of an animal's d′ and c {:+.2}",
         o.d_prime, p.sd_d_prime, o.criterion, p.sd_criterion, p.correlation
     );
+    if let Some(more) = slopes_phrase(&p.slopes) {
+        let _ = write!(line, "; {more}");
+    }
     if let Some(l) = r.lapse {
         let _ = write!(
             line,

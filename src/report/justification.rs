@@ -271,8 +271,10 @@ fn group_paragraph(plan: &Plan, g: &GroupReport) -> Vec<String> {
                 )
             })
             .collect();
+        let more = super::groups_text::slopes_phrase(&g.population.slopes)
+            .map_or(String::new(), |m| format!("; {m}"));
         let mut p = format!(
-            "Sample size. We plan {}, on a group of animals that differ (between-animal SD of d′ {:.2} and of c {:.2}). {}",
+            "Sample size. We plan {}, on a group of animals that differ (between-animal SD of d′ {:.2} and of c {:.2}{more}). {}",
             design_words(design),
             g.population.sd_d_prime,
             g.population.sd_criterion,
