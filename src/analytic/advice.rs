@@ -274,7 +274,7 @@ pub fn advise(
                 });
             }
         }
-        if design.record != RecordKind::Full
+        if !design.record.fixes_rows()
             && let Some(abs_corr) = r_of(&with_full_record(design))
             && meets(abs_corr)
         {

@@ -2,7 +2,7 @@
 //! counts the plan lists (so the scan's rows line up with `vigil run`), keeping only counts the
 //! design can be run at.
 
-use crate::design::{Design, RecordKind, split_trials};
+use crate::design::{Design, split_trials};
 
 /// Default number of log-spaced counts per design.
 pub const DEFAULT_POINTS: usize = 40;
@@ -24,10 +24,10 @@ pub fn log_spaced(from: u32, to: u32, points: usize) -> Vec<u32> {
 }
 
 /// Whether `design` can be run at `trials` per condition: at least [`MIN_TRIALS`], and for full
-/// records every condition's split leaves at least one present and one absent trial.
+/// (or two-choice) records every condition's split leaves at least one present and one absent trial.
 pub fn fits_design(design: &Design, trials: u32) -> bool {
     trials >= MIN_TRIALS
-        && (design.record != RecordKind::Full
+        && (!design.record.fixes_rows()
             || design.conditions.iter().all(|c| {
                 let s = split_trials(trials, c.presence);
                 s.present > 0 && s.absent > 0
@@ -65,7 +65,7 @@ pub fn design_grid(design: &Design, from: Option<u32>, to: Option<u32>, points: 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::design::{BaseRate, Condition, Response};
+    use crate::design::{BaseRate, Condition, RecordKind, Response};
 
     fn design(presence: f64, record: RecordKind) -> Design {
         Design {

@@ -90,6 +90,7 @@ impl Workspace {
                 spec.boundary,
                 spec.lapse.as_ref(),
                 second,
+                spec.record.d_prime_scale(),
             );
             let pi = 1.0 / (1.0 + (-self.u[slot_base_rate(spec.categories)]).exp());
             let q = pi * (1.0 - pi);

@@ -5,6 +5,9 @@
 //! Full counts: present block [P(m | present)]_m (n = N_S) and absent block [P(m | absent)]_m
 //! (n = N_N). Error totals (K = 2): one block [(1−π)F, π(1−H), (1−π)(1−F) + πH] (n = N).
 //! Response totals (K = 2): [πH + (1−π)F, π(1−H) + (1−π)(1−F)]. A census adds [π, 1−π] (n = M).
+//! A two-choice task: the target-left block [right, left] from the present row and the
+//! target-right block from the absent row (n = trials of each order); its table scales d′ by
+//! √2 (see `Record::TwoChoice`), so the blocks are those of full counts with other labels.
 
 use crate::cells::full_table::Class;
 use crate::cells::spec::{ConditionSpec, Record};
@@ -45,9 +48,9 @@ pub struct Cell {
 /// What a block counts, so a caller can set block sizes for a grid of trial numbers.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum BlockKind {
-    /// Trials with the stimulus present (full counts).
+    /// Trials with the stimulus present (full counts; two-choice: target on the left).
     PresentTrials,
-    /// Trials with the stimulus absent (full counts).
+    /// Trials with the stimulus absent (full counts; two-choice: target on the right).
     AbsentTrials,
     /// Encounters of unknown class (error or response totals).
     Encounters,
@@ -83,7 +86,19 @@ fn row_labels(categories: usize, class: Class) -> Vec<String> {
 }
 
 fn class_row(condition: usize, spec: &ConditionSpec, class: Class, n: u64) -> Block {
-    let cells = row_labels(spec.categories, class)
+    let labels = if matches!(spec.record, Record::TwoChoice { .. }) {
+        let order = match class {
+            Class::Present => "target left",
+            Class::Absent => "target right",
+        };
+        vec![
+            format!("{order}: chose right"),
+            format!("{order}: chose left"),
+        ]
+    } else {
+        row_labels(spec.categories, class)
+    };
+    let cells = labels
         .into_iter()
         .enumerate()
         .map(|(m, label)| Cell {
@@ -114,7 +129,11 @@ pub fn blocks_for(condition: usize, spec: &ConditionSpec) -> Vec<Block> {
     use Class::{Absent, Present};
     use Weight::{BaseRate, NotBaseRate};
     let (encounters, knowledge, cells) = match spec.record {
-        Record::Full { present, absent } => {
+        Record::Full { present, absent }
+        | Record::TwoChoice {
+            left: present,
+            right: absent,
+        } => {
             return vec![
                 class_row(condition, spec, Present, present),
                 class_row(condition, spec, Absent, absent),

@@ -182,7 +182,7 @@ pub fn model_degeneracy(
         let Some(variance) = covered(model, j) else {
             continue;
         };
-        if !matches!(spec.record, Record::Full { .. }) || rows.len() != 2 {
+        if !fixed_rows(&spec.record) || rows.len() != 2 {
             continue;
         }
         // Blocks of a full record: present trials first, then absent (see `coarsening`).
@@ -193,10 +193,17 @@ pub fn model_degeneracy(
     None
 }
 
+/// Full counts, or a two-choice task: two class rows of fixed size. A two-choice table is the
+/// full table at √2·d′, a one-to-one change of d′, so it has an interior maximum exactly when
+/// the full table does.
+fn fixed_rows(record: &Record) -> bool {
+    matches!(record, Record::Full { .. } | Record::TwoChoice { .. })
+}
+
 /// `Some(variance)` when condition `j` is covered by the rule (see [`model_degeneracy`]).
 fn covered(model: &ObservationModel, j: usize) -> Option<Variance> {
     let spec = &model.conditions()[j];
-    if spec.lapse.is_some() || !matches!(spec.record, Record::Full { .. }) {
+    if spec.lapse.is_some() || !fixed_rows(&spec.record) {
         return None;
     }
     let map = model.parameters();

@@ -73,6 +73,8 @@ impl TableJets {
     }
 
     /// Evaluates the table at local coordinates `u` (length K + 2) of a validated condition.
+    /// The table's mean difference is `d_scale`·d′ (1, or √2 for a two-choice task: see
+    /// `spec::Record::d_prime_scale`); derivatives stay with respect to d′ itself.
     pub fn evaluate(
         &mut self,
         u: &[f64],
@@ -80,6 +82,7 @@ impl TableJets {
         boundary: usize,
         lapse: Option<&Lapse>,
         second: bool,
+        d_scale: f64,
     ) {
         let kk = categories;
         let l = local_dim(kk);
@@ -91,7 +94,7 @@ impl TableJets {
         self.value.resize(2 * kk, 0.0);
         self.grad.resize(2 * kk * l, 0.0);
         self.hess.resize(if second { 2 * kk * l2 } else { 0 }, 0.0);
-        self.criteria(u, kk, boundary, l);
+        self.criteria(u, kk, boundary, l, d_scale);
         self.dz.resize(l, 0.0);
         self.d2z.resize(l2, 0.0);
         self.bound_cdf.resize(nb, 0.0);
@@ -99,11 +102,11 @@ impl TableJets {
         self.bound_grad.resize(nb * l, 0.0);
         self.bound_hess
             .resize(if second { nb * l2 } else { 0 }, 0.0);
-        let mu = u[SLOT_D_PRIME];
+        let mu = d_scale * u[SLOT_D_PRIME];
         let inv_sigma = (-u[SLOT_LN_SIGMA]).exp();
         for class in [Class::Absent, Class::Present] {
             for i in 0..nb {
-                let z = self.bound_derivatives(class, i, mu, inv_sigma, l, second);
+                let z = self.bound_derivatives(class, i, (mu, d_scale), inv_sigma, l, second);
                 self.bound_cdf[i] = normal::cdf(z);
                 self.bound_sf[i] = normal::sf(z);
                 let dens = normal::pdf(z);
@@ -126,15 +129,15 @@ impl TableJets {
 
     /// Criteria k_i (stored at i − 1) and their derivatives ∂k/∂u. The second derivatives of
     /// k are diagonal in the gap coordinates and equal to the first (∂²e^g/∂g² = e^g).
-    fn criteria(&mut self, u: &[f64], kk: usize, boundary: usize, l: usize) {
+    fn criteria(&mut self, u: &[f64], kk: usize, boundary: usize, l: usize, d_scale: f64) {
         let nb = kk - 1;
         self.k.resize(nb, 0.0);
         self.dk.clear();
         self.dk.resize(nb * l, 0.0);
         let b = boundary - 1;
-        self.k[b] = u[SLOT_CRITERION] + 0.5 * u[SLOT_D_PRIME];
+        self.k[b] = u[SLOT_CRITERION] + 0.5 * d_scale * u[SLOT_D_PRIME];
         for i in 0..nb {
-            self.dk[i * l + SLOT_D_PRIME] = 0.5;
+            self.dk[i * l + SLOT_D_PRIME] = 0.5 * d_scale;
             self.dk[i * l + SLOT_CRITERION] = 1.0;
         }
         // Above the boundary: k_{i} = k_{i−1} + e^{u_gap(i−1)}; gap m lies between k_{m}, k_{m+1}
@@ -157,13 +160,13 @@ impl TableJets {
         }
     }
 
-    /// Fills `dz`, `d2z` for bound `i` of `class` and returns z.
-    /// Absent: z = k. Present: z = (k − d′)·e^{−u₂}, so ∂z/∂u₂ = −z and ∂²z/∂u₂∂x = −∂z/∂x.
+    /// Fills `dz`, `d2z` for bound `i` of `class` and returns z. `mu` = (s·d′, s).
+    /// Absent: z = k. Present: z = (k − s·d′)·e^{−u₂}, so ∂z/∂u₂ = −z and ∂²z/∂u₂∂x = −∂z/∂x.
     fn bound_derivatives(
         &mut self,
         class: Class,
         i: usize,
-        mu: f64,
+        (mu, d_scale): (f64, f64),
         inv_sigma: f64,
         l: usize,
         second: bool,
@@ -177,7 +180,7 @@ impl TableJets {
             *d = k * scale;
         }
         if class == Class::Present {
-            self.dz[SLOT_D_PRIME] -= inv_sigma;
+            self.dz[SLOT_D_PRIME] -= d_scale * inv_sigma;
             self.dz[SLOT_LN_SIGMA] = -z;
         }
         if second {
@@ -249,7 +252,7 @@ mod tests {
     #[test]
     fn yes_no_rates_match_the_convention() {
         let mut t = TableJets::default();
-        t.evaluate(&[1.805952, 0.378576, 0.0, 0.0], 2, 1, None, false);
+        t.evaluate(&[1.805952, 0.378576, 0.0, 0.0], 2, 1, None, false, 1.0);
         assert!((t.value(Class::Present, 1) - 0.70).abs() < 1e-6);
         assert!((t.value(Class::Absent, 1) - 0.10).abs() < 1e-6);
     }
@@ -262,7 +265,7 @@ mod tests {
             rate: 0.1,
             guess: vec![0.2, 0.2, 0.2, 0.2, 0.1, 0.1],
         };
-        t.evaluate(&u, 6, 3, Some(&lapse), true);
+        t.evaluate(&u, 6, 3, Some(&lapse), true, 1.0);
         for class in [Class::Absent, Class::Present] {
             let s: f64 = (0..6).map(|m| t.value(class, m)).sum();
             assert!((s - 1.0).abs() < 1e-12);
@@ -273,12 +276,34 @@ mod tests {
         }
     }
 
+    // A two-choice table is the yes/no table at √2·d′ (Macmillan & Creelman 2005, ch. 7):
+    // with c = 0, H = 1 − F = p_c = Φ(d′/√2); p_c = 0.76 at d′ = 0.998863 (SciPy 1.17
+    // `sqrt(2)*norm.ppf(0.76)`).
+    #[test]
+    fn two_choice_scale_gives_the_proportion_correct() {
+        let mut t = TableJets::default();
+        t.evaluate(
+            &[0.998863, 0.0, 0.0, 0.0],
+            2,
+            1,
+            None,
+            true,
+            std::f64::consts::SQRT_2,
+        );
+        assert!((t.value(Class::Present, 1) - 0.76).abs() < 1e-6);
+        assert!((t.value(Class::Absent, 0) - 0.76).abs() < 1e-6);
+        // ∂H/∂d′ = φ(d′/√2)/√2 (chain rule, written out here).
+        let want = crate::model::normal::pdf(0.998863 / std::f64::consts::SQRT_2)
+            / std::f64::consts::SQRT_2;
+        assert!((t.grad(Class::Present, 1)[0] - want).abs() < 1e-12);
+    }
+
     #[test]
     fn far_tail_cells_keep_relative_accuracy() {
         // Absent row with all criteria far above zero: Φ(k2) − Φ(k1) must come from the upper
         // tails, not from 1 − 1.
         let mut t = TableJets::default();
-        t.evaluate(&[0.0, 9.0, 0.0, 0.0, 0.0], 3, 1, None, false);
+        t.evaluate(&[0.0, 9.0, 0.0, 0.0, 0.0], 3, 1, None, false, 1.0);
         let exact = normal::sf(9.0) - normal::sf(10.0);
         let got = t.value(Class::Absent, 1);
         assert!(((got - exact) / exact).abs() < 1e-12, "{got} vs {exact}");

@@ -80,13 +80,19 @@ pub enum Record {
         encounters: u64,
         base_rate: BaseRate,
     },
+    /// A two-choice task (K = 2): `left` trials with the target on the left, `right` with it on
+    /// the right, each scored as a choice of left (category 1) or right (category 0). The
+    /// choice compares the two sides, so its table is the yes/no table with d′ replaced by
+    /// √2·d′ (Macmillan & Creelman 2005, ch. 7): H = P(left | target left) = Φ(d′/√2 − c),
+    /// F = P(left | target right) = Φ(−d′/√2 − c). Two blocks, target-left first.
+    TwoChoice { left: u64, right: u64 },
 }
 
 impl Record {
     /// The base-rate knowledge, or `None` for records where π is not part of the model.
     pub fn base_rate_knowledge(&self) -> Option<BaseRate> {
         match *self {
-            Record::Full { .. } => None,
+            Record::Full { .. } | Record::TwoChoice { .. } => None,
             Record::ErrorTotals { base_rate, .. } | Record::ResponseTotals { base_rate, .. } => {
                 Some(base_rate)
             }
@@ -98,6 +104,16 @@ impl Record {
             Record::Full { .. } => "full counts",
             Record::ErrorTotals { .. } => "error totals",
             Record::ResponseTotals { .. } => "response totals",
+            Record::TwoChoice { .. } => "two-choice",
+        }
+    }
+
+    /// Factor on d′ in the table: √2 for a two-choice task (the choice sees the difference
+    /// of two independent evidence samples, whose means lie 2·d′ apart at SD √2), else 1.
+    pub fn d_prime_scale(&self) -> f64 {
+        match self {
+            Record::TwoChoice { .. } => std::f64::consts::SQRT_2,
+            _ => 1.0,
         }
     }
 }
@@ -257,6 +273,13 @@ impl ConditionSpec {
         &self,
         bad: &dyn Fn(&'static str, f64, &'static str) -> SpecError,
     ) -> Result<(), SpecError> {
+        if matches!(self.record, Record::TwoChoice { .. }) && self.categories != 2 {
+            return Err(SpecError::RecordNeedsYesNo {
+                condition: self.name.clone(),
+                record: self.record.label(),
+                categories: self.categories,
+            });
+        }
         match self.record.base_rate_knowledge() {
             None => {
                 if self.roles.base_rate == BaseRateLink::Shared {

@@ -36,7 +36,7 @@ impl Design {
     /// Every condition at `trials` trials (or encounters) per condition, in plan order.
     pub fn condition_trials(&self, trials: u32) -> Vec<ConditionTrials> {
         let counts = match self.record {
-            RecordKind::Full => TrialCounts::Fixed,
+            RecordKind::Full | RecordKind::TwoChoice => TrialCounts::Fixed,
             RecordKind::ErrorTotals | RecordKind::ResponseTotals => TrialCounts::Expected,
         };
         self.conditions

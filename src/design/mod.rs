@@ -51,9 +51,15 @@ pub enum RecordKind {
     ErrorTotals,
     /// Only how often the animal responded, among encounters drawn at the base rate.
     ResponseTotals,
+    /// A two-choice task: every trial offers both stimuli, the target on the left or on the
+    /// right (fixed counts of each order), and the animal picks a side. The two orders form a
+    /// yes/no-like table with "left" as the response (Macmillan & Creelman 2005, ch. 7).
+    TwoChoice,
 }
 
 impl RecordKind {
+    /// Names accepted in plans. `TwoChoice` has no plan name yet: it is reachable only from
+    /// code until its plan keys, docs and checks land.
     pub const NAMES: [&'static str; 3] = ["full", "error-totals", "response-totals"];
 
     pub fn from_name(name: &str) -> Option<Self> {
@@ -63,6 +69,13 @@ impl RecordKind {
             "response-totals" => Some(Self::ResponseTotals),
             _ => None,
         }
+    }
+
+    /// Whether the record fixes the number of trials of each row (present/absent trials, or
+    /// target-left/target-right trials of a two-choice task), so the presence share splits
+    /// every trial count and both rows need at least one trial.
+    pub fn fixes_rows(self) -> bool {
+        matches!(self, Self::Full | Self::TwoChoice)
     }
 }
 
@@ -98,10 +111,14 @@ impl SharedParameter {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Condition {
     pub name: String,
-    /// Share of trials (or encounters) with the stimulus present, in (0, 1).
+    /// Share of trials (or encounters) with the stimulus present, in (0, 1); in a two-choice
+    /// task the share of trials with the target on the left.
     pub presence: f64,
+    /// d′ of the stimuli (in a two-choice task the d′ of one stimulus against the other, as a
+    /// yes/no task on them would measure it; the choice itself sees √2·d′).
     pub d_prime: f64,
-    /// Criterion c at the yes/no boundary.
+    /// Criterion c at the yes/no boundary; in a two-choice task the side bias
+    /// c = −[z(H) + z(F)]/2, positive = towards the right.
     pub criterion: f64,
 }
 
@@ -149,6 +166,7 @@ impl Design {
             RecordKind::Full => response,
             RecordKind::ErrorTotals => format!("error totals, {base}"),
             RecordKind::ResponseTotals => format!("response totals, {base}"),
+            RecordKind::TwoChoice => "two-choice (left or right)".to_string(),
         }
     }
 

@@ -22,10 +22,18 @@ pub fn observation_model(
 /// The specs that generate data: as [`condition_specs`], but with the animal's own σ even
 /// where the analysis holds σ at 1 (yes/no designs, `fix_sigma`), so a wrong
 /// equal-variance assumption shows up as bias, as it would in real data.
+///
+/// A two-choice task compares the two sides, so both orders see the difference of one target
+/// and one foil sample, of SD √(1 + σ²) in either order: its table keeps σ = 1 and a d′ of
+/// d′·√(2/(1 + σ²)), which equals d′ when σ = 1 (the analysis's equal-variance reading).
 pub fn truth_specs(design: &Design, observer: &Observer, trials: u32) -> Vec<ConditionSpec> {
     let mut specs = condition_specs(design, observer, trials);
     for s in &mut specs {
-        s.values.sigma = observer.sigma;
+        if design.record == RecordKind::TwoChoice {
+            s.values.d_prime *= (2.0 / (1.0 + observer.sigma * observer.sigma)).sqrt();
+        } else {
+            s.values.sigma = observer.sigma;
+        }
     }
     specs
 }
@@ -88,6 +96,13 @@ pub fn condition_specs(design: &Design, observer: &Observer, trials: u32) -> Vec
                     encounters: u64::from(trials),
                     base_rate: knowledge,
                 },
+                RecordKind::TwoChoice => {
+                    let s = split_trials(trials, c.presence);
+                    Record::TwoChoice {
+                        left: u64::from(s.present),
+                        right: u64::from(s.absent),
+                    }
+                }
             };
             // The whole scale moves with the condition's criterion; its spacing is kept.
             let gaps = offsets.windows(2).map(|w| w[1] - w[0]).collect();

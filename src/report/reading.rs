@@ -8,7 +8,7 @@ use super::identification_text::identification_note;
 use crate::analytic::advice::{Advice, Figures, Shortfall, Yardsticks, shortfalls};
 use crate::analytic::scale_fit::ScaleFit;
 use crate::cells::verdict::Verdict;
-use crate::design::{Design, RecordKind};
+use crate::design::Design;
 use crate::engine::ScenarioSummary;
 use crate::plan::Plan;
 use crate::vocab::{Quantity, RateCorrection};
@@ -170,13 +170,13 @@ fn extreme_text(plan: &Plan, design: &Design, s: &ScenarioSummary) -> String {
     let correction = plan.study().rate_correction;
     let pct = 100.0 * s.datasets.extreme.value;
     let trials = s.scenario.trials;
-    if design.record == RecordKind::Full && correction != RateCorrection::None {
+    if design.record.fixes_rows() && correction != RateCorrection::None {
         return format!(
             "at {trials} trials {pct:.0}% of datasets hit a rate of 0 or 1, so rows up to there lean on the {} correction",
             correction.name()
         );
     }
-    let why = if design.record == RecordKind::Full {
+    let why = if design.record.fixes_rows() {
         "with rate_correction = \"none\" they are not corrected"
     } else {
         "a coarse record gets no correction"

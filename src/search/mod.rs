@@ -15,7 +15,7 @@
 //! stays closer to α at small counts than the Wald test's; both are reported).
 
 use crate::design::goals::{Hypothesis, TestKind};
-use crate::design::{Design, RecordKind, split_trials};
+use crate::design::{Design, split_trials};
 use crate::engine::Contrast;
 use crate::engine::{ScenarioSummary, Share};
 use crate::evaluate::{RunError, RunOptions, run_scenario};
@@ -144,7 +144,7 @@ fn targets_for<'a>(
 fn smallest_valid(design: &Design) -> u32 {
     (2..)
         .find(|&n| {
-            design.record != RecordKind::Full
+            !design.record.fixes_rows()
                 || design.conditions.iter().all(|c| {
                     let s = split_trials(n, c.presence);
                     s.present > 0 && s.absent > 0

@@ -110,6 +110,14 @@ fn base_rate(ctx: &Ctx, d: &RawDesign, record: RecordKind) -> Result<BaseRate, P
                 .into(),
         ));
     }
+    if record == RecordKind::TwoChoice {
+        return Err(ctx.at(
+            b,
+            "base_rate",
+            "a two-choice record offers the target on every trial (left or right, at the presence share), so it has no base rate to know or estimate"
+                .into(),
+        ));
+    }
     match (b.get_ref().as_str(), census) {
         ("known", None) => Ok(BaseRate::Known),
         ("unknown", None) => Ok(BaseRate::Unknown),
@@ -155,7 +163,7 @@ fn trials(
                 format!("{n} trials is outside 2 to {MAX_TRIALS}"),
             ));
         }
-        if record == RecordKind::Full {
+        if record.fixes_rows() {
             for c in conditions {
                 let split = split_trials(n as u32, c.presence);
                 if split.present == 0 || split.absent == 0 {
