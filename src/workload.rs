@@ -34,7 +34,8 @@ pub const NOTE_SECONDS: f64 = 120.0;
 pub struct Workload {
     /// Datasets the run simulates and fits (an upper estimate for the effort split).
     pub datasets: u64,
-    /// The experiments per scenario the plan (or `--experiments`) asks for.
+    /// The experiments per scenario the plan (or `--experiments`) asks for; a precision
+    /// run's ceiling.
     pub experiments: u64,
     /// Estimated seconds on this machine, when the run was large enough to be timed.
     pub seconds: Option<f64>,
@@ -57,8 +58,10 @@ fn datasets(plan: &Plan, options: RunOptions) -> (Vec<u64>, u64) {
     let mut by_design = vec![0u64; plan.designs().len()];
     let mut groups = 0u64;
     if !options.exact {
+        let most = evaluate::most_experiments(plan);
         for s in plan.scenarios() {
-            by_design[s.design] = by_design[s.design].saturating_add(plan.study().experiments);
+            // A precision run is counted at its ceiling: the most it can do.
+            by_design[s.design] = by_design[s.design].saturating_add(most);
         }
         if plan.animals().is_some() {
             groups = crate::groups::animal_datasets_by_design(plan)
@@ -76,7 +79,7 @@ pub fn estimate(plan: &Plan, options: RunOptions) -> Workload {
     let (by_design, groups) = datasets(plan, options);
     let scenario_datasets = by_design.iter().fold(0u64, |a, &b| a.saturating_add(b));
     let datasets = scenario_datasets.saturating_add(groups);
-    let experiments = plan.study().experiments;
+    let experiments = evaluate::most_experiments(plan);
     if datasets <= UNTIMED_DATASETS {
         return Workload {
             datasets,
@@ -100,12 +103,14 @@ pub fn estimate(plan: &Plan, options: RunOptions) -> Workload {
             .sum::<f64>();
     }
     if groups > UNTIMED_DATASETS
-        && let Ok(pilot) = plan.with_experiments(GROUP_PILOT_EXPERIMENTS.min(experiments))
+        && let Ok(pilot) =
+            plan.with_experiments(GROUP_PILOT_EXPERIMENTS.min(plan.study().experiments))
     {
         let start = Instant::now();
         let _ = crate::groups::run_groups(&pilot, &|_| {});
         let per_experiment = start.elapsed().as_secs_f64() / pilot.study().experiments as f64;
-        seconds += per_experiment * experiments as f64;
+        // Group studies run the plan's `experiments`, precision stop or not.
+        seconds += per_experiment * plan.study().experiments as f64;
     }
     Workload {
         datasets,

@@ -120,6 +120,7 @@ pub fn prepare(req: &RunRequest) -> Result<PreparedRun, AppError> {
     let options = RunOptions { exact: req.exact };
     evaluate::preflight(&plan, options)?;
     check_part_options(req)?;
+    check_precision_options(req, &plan)?;
     let mut set = CommitSet::new();
     set.input("plan", &req.plan);
     let part = match (req.part, &req.part_file) {
@@ -287,6 +288,23 @@ fn check_part_options(req: &RunRequest) -> Result<(), AppError> {
         }
         (Some(_), Some(_)) => Ok(()),
     }
+}
+
+/// A precision run decides alone when each scenario has run enough: it cannot be one part
+/// of a split run, nor resume a checkpoint of chunks planned for a fixed count.
+fn check_precision_options(req: &RunRequest, plan: &Plan) -> Result<(), AppError> {
+    if plan.study().precision.is_none() {
+        return Ok(());
+    }
+    let option = match (req.part.is_some(), req.checkpoint.is_some()) {
+        (true, _) => "--part",
+        (_, true) => "--checkpoint",
+        _ => return Ok(()),
+    };
+    Err(AppError::Input(format!(
+        "{}: {option} cannot be combined with [study.precision]: a precision run adds experiments until its own tallies are precise enough, so its chunks are not known in advance\n  allowed: {option} with a fixed count (--experiments N sets the precision stop aside), or a precision run in one process",
+        req.plan.display()
+    )))
 }
 
 /// Everything a run computes: the scenario summaries, the searches and the groups.

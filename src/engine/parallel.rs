@@ -145,3 +145,70 @@ pub fn run_replicates<K: Kernel + ?Sized>(
     }
     total
 }
+
+/// The end of a run that grows until its tally is precise enough.
+pub struct Grown<T> {
+    pub tally: T,
+    /// Replicates in the tally.
+    pub replicates: u64,
+    /// Whether `enough` held (false: the ceiling was reached first).
+    pub met: bool,
+}
+
+/// Runs chunks of `kernel` in chunk order until `enough(tally)` holds at a chunk boundary at
+/// or past `fewest` replicates, or `most` replicates are done. Chunks run in parallel blocks,
+/// but the tally is folded and checked one chunk at a time, so where it stops depends only
+/// on the tallies, never on the thread count; chunks of a block past the stop are dropped.
+/// Stopping at n replicates gives the bits of [`run_replicates`] of n (every chunk before
+/// the last is whole, and the last is cut at `most` in both).
+pub fn run_replicates_until<K: Kernel + ?Sized>(
+    kernel: &K,
+    seed: u64,
+    scenario: u64,
+    (fewest, most): (u64, u64),
+    enough: &dyn Fn(&K::Tally) -> bool,
+    progress: &Progress<'_>,
+) -> Grown<K::Tally> {
+    let chunks = chunk_count(most);
+    let first_check = chunk_count(fewest.min(most));
+    // After the first check, blocks of one chunk per thread: little work is wasted past the
+    // stop, and the block size changes only how fast, not what.
+    let growing = rayon::current_num_threads().max(1) as u64;
+    let mut total = kernel.tally();
+    let mut start = 0;
+    while start < chunks {
+        let size = if start < first_check {
+            (first_check - start).min(BLOCK_CHUNKS)
+        } else {
+            growing
+        };
+        let end = (start + size).min(chunks);
+        let parts: Vec<K::Tally> = (start..end)
+            .into_par_iter()
+            .map(|chunk| {
+                let tally = run_chunk(kernel, seed, scenario, most, chunk);
+                let lo = chunk * CHUNK;
+                progress(Event::Done((lo + CHUNK).min(most) - lo));
+                tally
+            })
+            .collect();
+        for (chunk, part) in (start..end).zip(parts) {
+            kernel.merge(&mut total, part);
+            let done = chunk + 1;
+            if done >= first_check && done < chunks && enough(&total) {
+                return Grown {
+                    tally: total,
+                    replicates: done * CHUNK,
+                    met: true,
+                };
+            }
+        }
+        start = end;
+    }
+    let met = enough(&total);
+    Grown {
+        tally: total,
+        replicates: most,
+        met,
+    }
+}

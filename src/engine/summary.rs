@@ -91,6 +91,10 @@ pub struct ScenarioSummary {
     /// The expected information's verdict in plain words when the design is weakly or not
     /// identified (with profile-likelihood ranges of d′ and c when not identified).
     pub identification: Option<crate::cells::verdict::Identification>,
+    /// Under `[study.precision]`: whether the targets were met before the ceiling (the
+    /// experiments run are `datasets.total`); `None` for a fixed count.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub precision_met: Option<bool>,
 }
 
 impl QuantitySummary {
@@ -154,6 +158,7 @@ pub fn summarise(
             })
             .collect(),
         identification: None,
+        precision_met: None,
     }
 }
 

@@ -26,7 +26,12 @@ pub const TABLE_KEYS: &[(&str, &[&str])] = &[
             "alpha",
             "max_trials",
             "values_source",
+            "precision",
         ],
+    ),
+    (
+        "precision",
+        &["power_se", "mean_se_per_sd", "max_experiments"],
     ),
     (
         "observer",
@@ -108,9 +113,21 @@ pub fn allowed(key: &str) -> &'static str {
         "values_source" => {
             "text in quotes naming where the hypothesised values come from (a pilot, a paper), 1 to 500 characters on one line, e.g. values_source = \"pilot 2025, 6 voles\""
         }
+        "precision" => {
+            "a table [study.precision] with power_se and/or mean_se_per_sd, and optionally max_experiments"
+        }
+        "power_se" => {
+            "the largest Monte Carlo SE allowed on any power or rejection rate, from 0.0005 to 0.1, e.g. power_se = 0.005"
+        }
+        "mean_se_per_sd" => {
+            "the largest Monte Carlo SE allowed on any mean estimate, as a fraction of that estimate's SD, from 0.001 to 0.5, e.g. mean_se_per_sd = 0.01"
+        }
+        "max_experiments" => {
+            "the most experiments per scenario a precision run may simulate, a whole number from the plan's experiments to 100000000 (default 100000)"
+        }
         "seed" => "a whole number from 0 to 9223372036854775807",
         "experiments" => {
-            "a whole number of simulated experiments from 1 to 100000000 (default 2000)"
+            "a whole number of simulated experiments from 1 to 100000000 (default 2000); with [study.precision], the fewest each scenario runs before its precision is checked"
         }
         "confidence" => "a number strictly between 0 and 1, e.g. 0.95 (default 0.95)",
         "rate_correction" => "\"log-linear\" (default), \"half-n\" or \"none\"",

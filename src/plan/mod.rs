@@ -42,7 +42,28 @@ pub struct Study {
     /// Where the hypothesised values come from, in the user's words (for the justification).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub values_source: Option<String>,
+    /// `[study.precision]`: run each scenario until its Monte Carlo error is this small,
+    /// `experiments` being the fewest it runs; `None` runs exactly `experiments`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub precision: Option<Precision>,
 }
+
+/// `[study.precision]`: a scenario's experiments are added a chunk at a time, in chunk
+/// order, until every figure named here is as precise as asked (or the ceiling is reached).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Precision {
+    /// Largest Monte Carlo SE allowed on any power or rejection rate.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub power_se: Option<f64>,
+    /// Largest Monte Carlo SE allowed on any mean estimate, as a fraction of its SD.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub mean_se_per_sd: Option<f64>,
+    /// The most experiments a scenario may run.
+    pub max_experiments: u64,
+}
+
+/// Default ceiling of a precision run, per scenario.
+pub const DEFAULT_MAX_EXPERIMENTS: u64 = 100_000;
 
 /// How the observer's criterion was given.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -135,8 +156,9 @@ impl Plan {
         &self.budget
     }
 
-    /// The same plan with `experiments` simulated experiments per scenario (the
-    /// `--experiments` override), checked like the plan's own value.
+    /// The same plan with exactly `experiments` simulated experiments per scenario (the
+    /// `--experiments` override, for quick looks: it sets any precision stop aside), checked
+    /// like the plan's own value.
     pub fn with_experiments(&self, experiments: u64) -> Result<Plan, PlanError> {
         if !(1..=MAX_EXPERIMENTS).contains(&experiments) {
             return Err(PlanError {
@@ -149,6 +171,7 @@ impl Plan {
         }
         let mut plan = self.clone();
         plan.study.experiments = experiments;
+        plan.study.precision = None;
         Ok(plan)
     }
 

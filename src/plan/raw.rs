@@ -33,6 +33,16 @@ pub struct RawStudy {
     pub alpha: Option<Spanned<f64>>,
     pub max_trials: Option<Spanned<i64>>,
     pub values_source: Option<Spanned<String>>,
+    pub precision: Option<Spanned<RawPrecision>>,
+}
+
+/// `[study.precision]`: simulate until the Monte Carlo error is small enough.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawPrecision {
+    pub power_se: Option<Spanned<f64>>,
+    pub mean_se_per_sd: Option<Spanned<f64>>,
+    pub max_experiments: Option<Spanned<i64>>,
 }
 
 /// `[observer]`: the hypothesised animal.

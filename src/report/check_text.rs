@@ -44,10 +44,13 @@ pub fn render(path: &Path, plan: &Plan) -> String {
     });
     let _ = writeln!(
         out,
-        "observer: d′ = {}, {criterion}, σ = {}{lapses}; {} experiments per scenario, seed {}, {:.0}% intervals, {} correction",
+        "observer: d′ = {}, {criterion}, σ = {}{lapses}; {} per scenario, seed {}, {:.0}% intervals, {} correction",
         plain(o.d_prime),
         plain(o.sigma),
-        plan.study().experiments,
+        match plan.study().precision {
+            None => format!("{} experiments", plan.study().experiments),
+            Some(_) => super::precision_text::settings_phrase(plan.study()),
+        },
         plan.study().seed,
         100.0 * plan.study().confidence,
         plan.study().rate_correction.name()

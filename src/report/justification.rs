@@ -332,9 +332,9 @@ fn group_paragraph(plan: &Plan, g: &GroupReport) -> Vec<String> {
 fn settings_sentence(plan: &Plan) -> String {
     let s = plan.study();
     format!(
-        "These figures come from simulation with vigil {} ({} simulated experiments at each evaluated trial count, seed {}; every simulated dataset fitted by maximum likelihood, rates of 0 or 1 handled by the {} correction; {:.0}% Wald intervals). The same plan and seed reproduce them exactly.",
+        "These figures come from simulation with vigil {} ({} at each evaluated trial count, seed {}; every simulated dataset fitted by maximum likelihood, rates of 0 or 1 handled by the {} correction; {:.0}% Wald intervals). The same plan and seed reproduce them exactly.",
         env!("CARGO_PKG_VERSION"),
-        s.experiments,
+        super::precision_text::settings_phrase(s),
         s.seed,
         s.rate_correction.name(),
         100.0 * s.confidence

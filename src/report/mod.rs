@@ -25,6 +25,7 @@ pub mod page_markdown;
 pub mod phase_text;
 pub mod pilot_plan;
 pub mod pilot_text;
+pub mod precision_text;
 pub mod reading;
 pub mod report_page;
 pub mod shard_text;

@@ -41,11 +41,11 @@ pub fn build(c: &ReportContent) -> Page {
     let title = format!("vigil report — {}", study.title);
     b.push(PageBlock::Heading(1, title.clone()));
     b.push(PageBlock::Paragraph(format!(
-        "Made by vigil {} from {}: seed {}, {} simulated experiments per scenario, {:.0}% intervals, α = {}. The same plan and seed give the same numbers on any machine and thread count.",
+        "Made by vigil {} from {}: seed {}, {} per scenario, {:.0}% intervals, α = {}. The same plan and seed give the same numbers on any machine and thread count.",
         env!("CARGO_PKG_VERSION"),
         plan.source().file_name().map_or_else(|| plan.source().display().to_string(), |n| n.to_string_lossy().into_owned()),
         study.seed,
-        study.experiments,
+        super::precision_text::settings_phrase(study),
         100.0 * study.confidence,
         study.alpha
     )));

@@ -95,8 +95,8 @@ fn header(out: &mut String, plan: &Plan, summaries: &[ScenarioSummary]) {
         "exact enumeration of every outcome (no Monte Carlo error)".to_string()
     } else {
         format!(
-            "{} simulated experiments per row, seed {}",
-            plan.study().experiments,
+            "{} per row, seed {}",
+            super::precision_text::settings_sentence_start(plan.study()),
             plan.study().seed
         )
     };
@@ -147,6 +147,9 @@ fn design_block(
         for line in type_one_notes(rows, plan.study().alpha) {
             let _ = writeln!(out, "{line}");
         }
+    }
+    for line in super::precision_text::rows_lines(rows) {
+        let _ = writeln!(out, "{line}");
     }
     for line in super::coverage_notes::run_notes(rows, plan.study().confidence) {
         let _ = writeln!(out, "{line}");

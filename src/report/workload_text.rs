@@ -35,7 +35,7 @@ pub fn note(w: &Workload) -> String {
 pub fn refusal(w: &Workload) -> String {
     format!(
         "the run would take {}, more than the limit of {} for a run without confirmation\n  \
-         allowed: fewer experiments (the plan's `experiments` or --experiments; now {}), fewer trial counts, \
+         allowed: fewer experiments (the plan's `experiments`, the `max_experiments` of a [study.precision] table, or --experiments; now up to {} per scenario), fewer trial counts, \
          animal counts or a smaller [budget] total — or pass --allow-long-run to run it anyway",
         estimate(w),
         duration(LIMIT_SECONDS).trim_start_matches("about "),

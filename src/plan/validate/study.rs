@@ -4,8 +4,8 @@ use super::{
     Ctx, DEFAULT_ALPHA, DEFAULT_CONFIDENCE, DEFAULT_EXPERIMENTS, DEFAULT_MAX_TRIALS, MAX_TRIALS,
     open_unit,
 };
-use crate::plan::raw::RawPlan;
-use crate::plan::{PlanError, Study};
+use crate::plan::raw::{RawPlan, RawPrecision};
+use crate::plan::{DEFAULT_MAX_EXPERIMENTS, MAX_EXPERIMENTS, PlanError, Precision, Study};
 use crate::vocab::RateCorrection;
 
 pub(super) fn study(ctx: &Ctx, raw: &RawPlan) -> Result<Study, PlanError> {
@@ -72,9 +72,14 @@ pub(super) fn study(ctx: &Ctx, raw: &RawPlan) -> Result<Study, PlanError> {
         None => None,
         Some(v) => Some(values_source(ctx, v)?),
     };
+    let precision = match &s.precision {
+        None => None,
+        Some(p) => Some(precision(ctx, p, experiments)?),
+    };
     Ok(Study {
         title: s.title.clone(),
         values_source,
+        precision,
         seed: seed as u64,
         experiments,
         confidence,
@@ -106,4 +111,54 @@ fn values_source(ctx: &Ctx, v: &toml::Spanned<String>) -> Result<String, PlanErr
         Some(p) => Err(ctx.at(v, "values_source", p)),
         None => Ok(text.to_string()),
     }
+}
+
+/// Bounds of `power_se`: below 0.0005 a power needs some 10⁶ experiments per scenario.
+const POWER_SE_RANGE: (f64, f64) = (0.0005, 0.1);
+/// Bounds of `mean_se_per_sd`: below 0.001 a mean needs 10⁶ usable datasets.
+const MEAN_SE_RANGE: (f64, f64) = (0.001, 0.5);
+
+/// `[study.precision]`: at least one target, each in its range, and a ceiling no lower
+/// than the plan's `experiments` (the fewest a scenario runs).
+fn precision(
+    ctx: &Ctx,
+    p: &toml::Spanned<RawPrecision>,
+    experiments: u64,
+) -> Result<Precision, PlanError> {
+    let raw = p.get_ref();
+    let target = |v: &Option<toml::Spanned<f64>>, key: &str, (lo, hi): (f64, f64)| match v {
+        None => Ok(None),
+        Some(t) if (lo..=hi).contains(t.get_ref()) => Ok(Some(*t.get_ref())),
+        Some(t) => Err(ctx.at(t, key, format!("{} is outside {lo} to {hi}", t.get_ref()))),
+    };
+    let power_se = target(&raw.power_se, "power_se", POWER_SE_RANGE)?;
+    let mean_se_per_sd = target(&raw.mean_se_per_sd, "mean_se_per_sd", MEAN_SE_RANGE)?;
+    if power_se.is_none() && mean_se_per_sd.is_none() {
+        return Err(ctx.at(
+            p,
+            "precision",
+            "names no target: give power_se, mean_se_per_sd or both".to_string(),
+        ));
+    }
+    let max_experiments = match &raw.max_experiments {
+        None => DEFAULT_MAX_EXPERIMENTS.max(experiments),
+        Some(m) if (experiments as i64..=MAX_EXPERIMENTS as i64).contains(m.get_ref()) => {
+            *m.get_ref() as u64
+        }
+        Some(m) => {
+            return Err(ctx.at(
+                m,
+                "max_experiments",
+                format!(
+                    "{} is outside {experiments} (the plan's experiments) to {MAX_EXPERIMENTS}",
+                    m.get_ref()
+                ),
+            ));
+        }
+    };
+    Ok(Precision {
+        power_se,
+        mean_se_per_sd,
+        max_experiments,
+    })
 }

@@ -8,7 +8,9 @@
 use crate::analytic::exact;
 use crate::cells::verdict::{Identification, Verdict};
 use crate::design::Response;
-use crate::engine::parallel::run_replicates;
+pub mod precision;
+
+use crate::engine::parallel::{run_replicates, run_replicates_until};
 use crate::engine::scenario_kernel::{FitSettings, ScenarioKernel};
 use crate::engine::summary::{self, Method, ScenarioSummary};
 use crate::engine::tally::EstimateTally;
@@ -53,8 +55,16 @@ pub fn total_replicates(plan: &Plan, options: RunOptions) -> u64 {
     if options.exact {
         0
     } else {
-        plan.scenarios().len() as u64 * plan.study().experiments
+        plan.scenarios().len() as u64 * most_experiments(plan)
     }
+}
+
+/// The most experiments a scenario of the plan runs: its precision ceiling, or its count.
+pub fn most_experiments(plan: &Plan) -> u64 {
+    let study = plan.study();
+    study
+        .precision
+        .map_or(study.experiments, |p| p.max_experiments)
 }
 
 /// Checks that the plan can be run with these options before any work starts.
@@ -215,14 +225,29 @@ pub fn simulate_scenario(
             Method::Exact,
         ));
     }
-    let tally = run_replicates(
+    let Some(target) = study.precision else {
+        let tally = run_replicates(
+            &kernel,
+            study.seed,
+            scenario.id,
+            study.experiments,
+            progress,
+        );
+        return Ok(summarise_simulated(plan, scenario, &tally));
+    };
+    let grown = run_replicates_until(
         &kernel,
         study.seed,
         scenario.id,
-        study.experiments,
+        (study.experiments, target.max_experiments),
+        &|tally| precision::precise_enough(&target, tally),
         progress,
     );
-    Ok(summarise_simulated(plan, scenario, &tally))
+    // The bar counted the ceiling; what was not needed moves it on.
+    progress(Event::Skipped(target.max_experiments - grown.replicates));
+    let mut summary = summarise_simulated(plan, scenario, &grown.tally);
+    summary.precision_met = Some(grown.met);
+    Ok(summary)
 }
 
 /// The summary of a scenario's simulated total tally.
