@@ -58,15 +58,15 @@ pub enum RecordKind {
 }
 
 impl RecordKind {
-    /// Names accepted in plans. `TwoChoice` has no plan name yet: it is reachable only from
-    /// code until its plan keys, docs and checks land.
-    pub const NAMES: [&'static str; 3] = ["full", "error-totals", "response-totals"];
+    /// Names accepted in plans.
+    pub const NAMES: [&'static str; 4] = ["full", "error-totals", "response-totals", "two-choice"];
 
     pub fn from_name(name: &str) -> Option<Self> {
         match name {
             "full" => Some(Self::Full),
             "error-totals" => Some(Self::ErrorTotals),
             "response-totals" => Some(Self::ResponseTotals),
+            "two-choice" => Some(Self::TwoChoice),
             _ => None,
         }
     }

@@ -206,10 +206,10 @@ pub fn allowed(key: &str) -> &'static str {
         "sigma" => "a number > 0 (SD of present-stimulus evidence; default 1)",
         "name" => "non-empty text in quotes, unique among designs",
         "presence" => {
-            "a share strictly between 0 and 1 (e.g. 0.3 = stimulus on 30% of trials); required on the design or on every condition"
+            "a share strictly between 0 and 1 (e.g. 0.3 = stimulus on 30% of trials; in a two-choice design the share of trials with the target on the left); required on the design or on every condition"
         }
         "record" => {
-            "\"full\" (default: every trial's stimulus and response), \"error-totals\" (false alarms, misses and correct responses summed over stimulus classes) or \"response-totals\" (only how often the animal responded)"
+            "\"full\" (default: every trial's stimulus and response), \"error-totals\" (false alarms, misses and correct responses summed over stimulus classes), \"response-totals\" (only how often the animal responded) or \"two-choice\" (both stimuli on every trial, target on the left or on the right, the animal picks a side)"
         }
         "base_rate" => {
             "for error-totals and response-totals records: \"known\" (default), \"census\" (estimated, helped by an independent census) or \"unknown\""

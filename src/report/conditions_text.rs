@@ -58,14 +58,22 @@ pub fn conditions_text(plan: &Plan, design: &Design) -> String {
             format!(", d′ = {d:.2}")
         }
     };
+    // In a two-choice task the presence share is the share of trials with the target on the
+    // left: the stimulus is on every trial.
+    let two_choice = design.record == crate::design::RecordKind::TwoChoice;
     if let [c] = design.conditions.as_slice() {
         let crit = if optimal || c.criterion != o.criterion {
             format!(", c = {}", criterion(c.criterion))
         } else {
             String::new()
         };
+        let share = if two_choice {
+            "target on the left on"
+        } else {
+            "stimulus present on"
+        };
         return format!(
-            "stimulus present on {:.0}% of trials{crit}{}",
+            "{share} {:.0}% of trials{crit}{}",
             100.0 * c.presence,
             own_d(c.d_prime)
         );
@@ -75,9 +83,14 @@ pub fn conditions_text(plan: &Plan, design: &Design) -> String {
         .iter()
         .map(|c| {
             format!(
-                "{} {:.0}% present, c = {}{}",
+                "{} {:.0}% {}, c = {}{}",
                 c.name,
                 100.0 * c.presence,
+                if two_choice {
+                    "target on the left"
+                } else {
+                    "present"
+                },
                 criterion(c.criterion),
                 own_d(c.d_prime)
             )

@@ -123,6 +123,9 @@ fn design_block(
     context: ReadingContext,
 ) {
     let detail = match &design.response {
+        Response::YesNo if design.record == crate::design::RecordKind::TwoChoice => {
+            "choice of a side".to_string()
+        }
         Response::YesNo => "yes/no".to_string(),
         Response::Rating(s) => format!(
             "{}-category rating, boundary at criterion {}{}",
@@ -137,7 +140,16 @@ fn design_block(
         _ => format!("; {}", design.record_label()),
     };
     let _ = writeln!(out, "■ {}  ({detail}{record}; {presence})", design.name);
-    let _ = writeln!(out, "{}", precision_table(rows, plan.study().confidence));
+    let split_header = if design.record == crate::design::RecordKind::TwoChoice {
+        "left/right"
+    } else {
+        "present/absent"
+    };
+    let _ = writeln!(
+        out,
+        "{}",
+        precision_table(rows, plan.study().confidence, split_header)
+    );
     if any_expected(rows.iter().flat_map(|s| &s.scenario.conditions)) {
         let _ = writeln!(out, "{EXPECTED_NOTE}");
     }
@@ -158,11 +170,13 @@ fn design_block(
     let _ = writeln!(out);
 }
 
-fn precision_table(rows: &[&ScenarioSummary], level: f64) -> Table {
+/// `split_header` names the two rows of the split: present/absent, or left/right (where
+/// the target was) in a two-choice task.
+fn precision_table(rows: &[&ScenarioSummary], level: f64, split_header: &str) -> Table {
     let cover = format!("{:.0}% coverage", 100.0 * level);
     let mut t = new_table(vec![
         "trials",
-        "present/absent",
+        split_header,
         "",
         "truth",
         "mean",
