@@ -116,6 +116,25 @@ pub fn run_chunks_until<K: Kernel + ?Sized>(
     done.into_iter().flatten().collect()
 }
 
+/// Runs the chunks `range` of a point of `replicates` replicates in parallel; their tallies
+/// in chunk order.
+fn run_block<K: Kernel + ?Sized>(
+    kernel: &K,
+    (seed, scenario, replicates): (u64, u64, u64),
+    range: std::ops::Range<u64>,
+    progress: &Progress<'_>,
+) -> Vec<K::Tally> {
+    range
+        .into_par_iter()
+        .map(|chunk| {
+            let tally = run_chunk(kernel, seed, scenario, replicates, chunk);
+            let lo = chunk * CHUNK;
+            progress(Event::Done((lo + CHUNK).min(replicates) - lo));
+            tally
+        })
+        .collect()
+}
+
 /// Runs `replicates` replicates of `kernel`; `progress` is told how many finished.
 pub fn run_replicates<K: Kernel + ?Sized>(
     kernel: &K,
@@ -129,15 +148,7 @@ pub fn run_replicates<K: Kernel + ?Sized>(
     let mut start = 0;
     while start < chunks {
         let end = (start + BLOCK_CHUNKS).min(chunks);
-        let parts: Vec<K::Tally> = (start..end)
-            .into_par_iter()
-            .map(|chunk| {
-                let tally = run_chunk(kernel, seed, scenario, replicates, chunk);
-                let lo = chunk * CHUNK;
-                progress(Event::Done((lo + CHUNK).min(replicates) - lo));
-                tally
-            })
-            .collect();
+        let parts = run_block(kernel, (seed, scenario, replicates), start..end, progress);
         for part in parts {
             kernel.merge(&mut total, part);
         }
@@ -183,15 +194,7 @@ pub fn run_replicates_until<K: Kernel + ?Sized>(
             growing
         };
         let end = (start + size).min(chunks);
-        let parts: Vec<K::Tally> = (start..end)
-            .into_par_iter()
-            .map(|chunk| {
-                let tally = run_chunk(kernel, seed, scenario, most, chunk);
-                let lo = chunk * CHUNK;
-                progress(Event::Done((lo + CHUNK).min(most) - lo));
-                tally
-            })
-            .collect();
+        let parts = run_block(kernel, (seed, scenario, most), start..end, progress);
         for (chunk, part) in (start..end).zip(parts) {
             kernel.merge(&mut total, part);
             let done = chunk + 1;
