@@ -25,7 +25,7 @@ pub fn settings_phrase(study: &Study) -> String {
         ));
     }
     format!(
-        "simulated experiments added {CHUNK} at a time, from {} until {} (at most {})",
+        "simulated experiments added {CHUNK} at a time, from {} until {}, or to a ceiling of {}",
         study.experiments,
         targets.join(" and "),
         p.max_experiments
