@@ -286,3 +286,12 @@ fn experiments_beyond_the_ceiling_are_refused_both_ways() {
         common::stderr(&out)
     );
 }
+
+#[test]
+fn two_choice_record_with_a_rating_scale_names_left_right_choices() {
+    let text = "[study]\ntitle = \"x\"\nseed = 1\n[observer]\nd_prime = 1\ncriterion = 0\n\
+                [[design]]\nname = \"a\"\npresence = 0.5\nrecord = \"two-choice\"\ntrials = [40]\n\
+                scale = { categories = 4, boundary = 2, absent_shares = [0.4, 0.3, 0.2, 0.1] }\n";
+    let msg = rejected(text, 10, "design[1].record");
+    assert!(msg.contains("keeps left/right choices only"), "{msg}");
+}

@@ -103,6 +103,16 @@ pub fn render(path: &Path, plan: &Plan) -> String {
         out,
         "present trials = presence × trials rounded to the nearest whole number (halves round up); absent = the rest."
     );
+    if plan
+        .designs()
+        .iter()
+        .any(|d| d.record == crate::design::RecordKind::TwoChoice)
+    {
+        let _ = writeln!(
+            out,
+            "In a two-choice design, present = trials with the target on the left, absent = with it on the right."
+        );
+    }
     if any_expected(scenarios.iter().flat_map(|s| &s.conditions)) {
         let _ = writeln!(out, "{EXPECTED_NOTE}");
     }

@@ -72,8 +72,13 @@ fn record(ctx: &Ctx, d: &RawDesign, response: &Response) -> Result<RecordKind, P
             r,
             "record",
             format!(
-                "a \"{}\" record keeps yes/no responses only; it cannot be combined with a rating scale",
-                r.get_ref()
+                "a \"{}\" record keeps {} only; it cannot be combined with a rating scale",
+                r.get_ref(),
+                if kind == RecordKind::TwoChoice {
+                    "left/right choices"
+                } else {
+                    "yes/no responses"
+                }
             ),
         ));
     }
