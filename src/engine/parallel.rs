@@ -135,7 +135,8 @@ fn run_block<K: Kernel + ?Sized>(
         .collect()
 }
 
-/// Runs `replicates` replicates of `kernel`; `progress` is told how many finished.
+/// Runs `replicates` replicates of `kernel`; `progress` is told how many finished. A fixed
+/// run is a growing run that is never precise enough before its count.
 pub fn run_replicates<K: Kernel + ?Sized>(
     kernel: &K,
     seed: u64,
@@ -143,18 +144,16 @@ pub fn run_replicates<K: Kernel + ?Sized>(
     replicates: u64,
     progress: &Progress<'_>,
 ) -> K::Tally {
-    let chunks = chunk_count(replicates);
-    let mut total = kernel.tally();
-    let mut start = 0;
-    while start < chunks {
-        let end = (start + BLOCK_CHUNKS).min(chunks);
-        let parts = run_block(kernel, (seed, scenario, replicates), start..end, progress);
-        for part in parts {
-            kernel.merge(&mut total, part);
-        }
-        start = end;
-    }
-    total
+    let never = |_: &K::Tally| false;
+    run_replicates_until(
+        kernel,
+        seed,
+        scenario,
+        (replicates, replicates),
+        &never,
+        progress,
+    )
+    .tally
 }
 
 /// The end of a run that grows until its tally is precise enough.

@@ -5,11 +5,11 @@
 //! It sits above `engine`, `analytic` and `power` and below the search and the commands, so
 //! the engine never calls back up.
 
+pub mod precision;
+
 use crate::analytic::exact;
 use crate::cells::verdict::{Identification, Verdict};
 use crate::design::Response;
-pub mod precision;
-
 use crate::engine::parallel::{run_replicates, run_replicates_until};
 use crate::engine::scenario_kernel::{FitSettings, ScenarioKernel};
 use crate::engine::summary::{self, Method, ScenarioSummary};
