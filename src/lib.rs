@@ -96,6 +96,8 @@ pub mod shard;
 pub mod simulate;
 #[doc(hidden)]
 pub mod spacing;
+#[doc(hidden)]
+pub mod uncertainty;
 pub mod vocab;
 pub mod workload;
 

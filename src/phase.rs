@@ -17,6 +17,9 @@ pub enum Phase {
     GroupsGrid { design: String },
     /// The effort split (animals against trials) of a design.
     EffortSplit { design: String },
+    /// Sensitivity and assurance of a design: the sweep, its Monte Carlo corners and the
+    /// assurance's check by simulation.
+    Assumptions { design: String },
     /// Part `index` of a run split into `of` parts (a job-array task).
     Part { index: u32, of: u32 },
     /// The fixed points of a run saved to a checkpoint as it goes.
@@ -33,6 +36,7 @@ impl Phase {
             Phase::SearchRound { .. } => "search",
             Phase::GroupsGrid { .. } => "groups",
             Phase::EffortSplit { .. } => "effort",
+            Phase::Assumptions { .. } => "assumptions",
             Phase::Part { .. } => "part",
             Phase::Checkpointed { .. } => "checkpoint",
             Phase::Merge { .. } => "merge",

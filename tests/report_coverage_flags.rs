@@ -41,7 +41,7 @@ fn check_run_flags(name: &str) -> usize {
     let advice = vigil::analytic::advice::RunAdvice::of(&p, &summaries);
     // Whole note lines: the unwrapped layout (wrapping is tested in tests/terminal_width.rs).
     vigil::report::layout::set_layout(vigil::report::layout::Layout::Wide);
-    let text = terminal::render_run(&p, &summaries, &[], None, &advice);
+    let text = terminal::render_run(&p, &summaries, &[], None, &advice, None);
     let level = p.study().confidence;
     let notes = note_lines(&text);
     let mut flagged = 0;

@@ -2,8 +2,8 @@
 //! (O'Hagan, Stevens & Campbell 2005, *Pharmaceutical Statistics* 4:187–201):
 //! A = E_prior[power(θ)], beside the power at the point value.
 //!
-//! This is the computational core only (a prior, its draws and the Monte Carlo expectation
-//! of any power curve); the plan section and the report that use it are still to come.
+//! This is the computational core (a prior, its draws and the Monte Carlo expectation of any
+//! power curve); `uncertainty::assured` applies it to a plan's `[assurance]` section.
 //!
 //! # Nested draws
 //!
@@ -47,11 +47,25 @@ pub fn assurance(
     seed: u64,
 ) -> Option<Assurance> {
     let point_power = power(prior.centre())?;
+    let values = draw_values(std::slice::from_ref(prior), draws, seed);
+    summarise(point_power, values.iter().map(|v| power(v[0])))
+}
+
+/// `draws` sets of values, one value per prior in each, from one stream seeded by `seed`
+/// (draw i, prior j is the (i·J + j)-th value drawn: the same for any thread count).
+pub fn draw_values(priors: &[Prior], draws: usize, seed: u64) -> Vec<Vec<f64>> {
     let mut rng = Xoshiro256PlusPlus::seed_from_u64(seed);
+    (0..draws)
+        .map(|_| priors.iter().map(|p| p.draw(&mut rng)).collect())
+        .collect()
+}
+
+/// The assurance of per-draw powers (`None` or a non-finite power: the draw failed, counted
+/// and left out of the mean); `None` when no draw has a power.
+pub fn summarise(point_power: f64, powers: impl Iterator<Item = Option<f64>>) -> Option<Assurance> {
     let (mut n, mut mean, mut m2, mut failed) = (0usize, 0.0f64, 0.0f64, 0usize);
-    for _ in 0..draws {
-        let theta = prior.draw(&mut rng);
-        match power(theta) {
+    for p in powers {
+        match p {
             Some(p) if p.is_finite() => {
                 // Welford's running mean and sum of squares (stable for p near 0 or 1).
                 n += 1;
@@ -70,7 +84,7 @@ pub fn assurance(
         value: mean,
         mc_se: (var / n as f64).sqrt(),
         point_power,
-        draws,
+        draws: n + failed,
         failed,
     })
 }

@@ -78,6 +78,7 @@ pub fn execute(prepared: PreparedReport, progress: &Progress<'_>) -> Result<Stri
         summaries,
         searches,
         groups,
+        uncertainty,
     } = results(plan, RunOptions::default(), progress)?;
     let scans = scan_plan(plan, ScanOptions::default()).map_err(|e| match e {
         InformationError::Model { design, source } => AppError::Run(RunError::Model {
@@ -91,14 +92,22 @@ pub fn execute(prepared: PreparedReport, progress: &Progress<'_>) -> Result<Stri
     let internal = |e: &dyn std::fmt::Display| AppError::Internal(e.to_string());
     let csv = report::csv_out::render(plan, &summaries).map_err(|e| internal(&e))?;
     let advice = crate::analytic::advice::RunAdvice::of(plan, &summaries);
-    let json = report::json_out::render(plan, &summaries, &searches, groups.as_ref(), &advice)
-        .map_err(|e| internal(&e))?;
+    let json = report::json_out::render(
+        plan,
+        &summaries,
+        &searches,
+        groups.as_ref(),
+        &advice,
+        uncertainty.as_ref(),
+    )
+    .map_err(|e| internal(&e))?;
     let justification = report::justification::paragraphs(plan, &searches, groups.as_ref());
     let tables = report::tables::render(&report::tables::TableInputs {
         plan,
         summaries: &summaries,
         searches: &searches,
         groups: groups.as_ref(),
+        uncertainty: uncertainty.as_ref(),
     })
     .map_err(|e| internal(&e))?;
     let mut others: Files = vec![
@@ -145,6 +154,7 @@ pub fn execute(prepared: PreparedReport, progress: &Progress<'_>) -> Result<Stri
         searches: &searches,
         groups: groups.as_ref(),
         advice: &advice,
+        uncertainty: uncertainty.as_ref(),
         figures: &svgs,
         files: &listed,
     });

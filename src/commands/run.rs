@@ -312,6 +312,8 @@ pub struct RunResults {
     pub summaries: Vec<ScenarioSummary>,
     pub searches: Vec<crate::search::SearchResult>,
     pub groups: Option<crate::groups::GroupReport>,
+    /// `[sensitivity]` and `[assurance]`, when the plan has either.
+    pub uncertainty: Option<crate::uncertainty::UncertaintyReport>,
 }
 
 /// Runs every scenario of the plan, the sample-size search and the groups.
@@ -350,10 +352,16 @@ fn results_with(
         )?),
         _ => None,
     };
+    let uncertainty = if options.exact {
+        None
+    } else {
+        crate::uncertainty::run(plan, progress)?
+    };
     Ok(RunResults {
         summaries,
         searches,
         groups,
+        uncertainty,
     })
 }
 
@@ -435,6 +443,7 @@ pub(super) fn execute_with(
         summaries,
         searches,
         groups,
+        uncertainty,
     } = results_with(plan, run.options, progress, stored)?;
     let advice = crate::analytic::advice::RunAdvice::of(plan, &summaries);
     let to_stdout = write_outputs(
@@ -442,6 +451,7 @@ pub(super) fn execute_with(
         &summaries,
         &searches,
         groups.as_ref(),
+        uncertainty.as_ref(),
         &advice,
         run.outputs,
     )?;
@@ -454,6 +464,7 @@ pub(super) fn execute_with(
             &searches,
             groups.as_ref(),
             &advice,
+            uncertainty.as_ref(),
         )),
     }
 }
@@ -465,6 +476,7 @@ fn write_outputs(
     summaries: &[ScenarioSummary],
     searches: &[crate::search::SearchResult],
     groups: Option<&crate::groups::GroupReport>,
+    uncertainty: Option<&crate::uncertainty::UncertaintyReport>,
     advice: &crate::analytic::advice::RunAdvice,
     mut outputs: Outputs,
 ) -> Result<Option<Vec<u8>>, AppError> {
@@ -474,8 +486,9 @@ fn write_outputs(
         outputs.set.write(slot, &bytes)?;
     }
     if let Some(slot) = outputs.json {
-        let bytes = report::json_out::render(plan, summaries, searches, groups, advice)
-            .map_err(|e| AppError::Internal(e.to_string()))?;
+        let bytes =
+            report::json_out::render(plan, summaries, searches, groups, advice, uncertainty)
+                .map_err(|e| AppError::Internal(e.to_string()))?;
         outputs.set.write(slot, &bytes)?;
     }
     if let Some(slots) = outputs.tables {
@@ -484,6 +497,7 @@ fn write_outputs(
             summaries,
             searches,
             groups,
+            uncertainty,
         })
         .map_err(|e| AppError::Internal(e.to_string()))?;
         for (slot, (_, bytes)) in slots.into_iter().zip(tables) {

@@ -228,31 +228,45 @@ pub fn t_power(delta: f64, se: f64, df: f64, sided: Sided, alpha: f64) -> f64 {
     if !(se > 0.0 && df >= 1.0) {
         return 0.0;
     }
-    let ncp = delta / se;
+    power_beyond(delta / se, t_critical(sided, alpha, df), sided)
+}
+
+/// The critical value of a t test at level `alpha` on `df` degrees of freedom.
+pub fn t_critical(sided: Sided, alpha: f64, df: f64) -> f64 {
     match sided {
-        Sided::TwoSided => {
-            let crit = t_quantile(1.0 - alpha / 2.0, df);
-            normal::cdf(ncp - crit) + normal::cdf(-ncp - crit)
-        }
-        Sided::Greater => normal::cdf(ncp - t_quantile(1.0 - alpha, df)),
-        Sided::Less => normal::cdf(-ncp - t_quantile(1.0 - alpha, df)),
+        Sided::TwoSided => t_quantile(1.0 - alpha / 2.0, df),
+        Sided::Greater | Sided::Less => t_quantile(1.0 - alpha, df),
+    }
+}
+
+/// Normal-approximation power at noncentrality `ncp` = δ/SE and critical value `crit`
+/// (callers that evaluate many effects at one df compute `crit` once).
+pub fn power_beyond(ncp: f64, crit: f64, sided: Sided) -> f64 {
+    match sided {
+        Sided::TwoSided => normal::cdf(ncp - crit) + normal::cdf(-ncp - crit),
+        Sided::Greater => normal::cdf(ncp - crit),
+        Sided::Less => normal::cdf(-ncp - crit),
+    }
+}
+
+/// SE and degrees of freedom of `test`'s group contrast with `animals` animals and
+/// per-animal variance `v` (Welch's with two populations of ⌊N/2⌋ and the rest); `None` when
+/// a population would have fewer than 2 animals.
+pub fn group_se_df(test: &GroupTest, animals: u32, v: f64) -> Option<(f64, f64)> {
+    let n = f64::from(animals);
+    if test.two_populations() {
+        let n1 = f64::from(animals / 2);
+        let n2 = n - n1;
+        (n1 >= 2.0).then(|| ((v / n1 + v / n2).sqrt(), n - 2.0))
+    } else {
+        Some(((v / n).sqrt(), n - 1.0))
     }
 }
 
 /// Approximate power of `test` with `animals` animals, given the per-animal variance
 /// v = b + w of its contrast and effect δ.
 pub fn group_power(test: &GroupTest, animals: u32, v: f64, delta: f64, alpha: f64) -> f64 {
-    let n = f64::from(animals);
-    if test.two_populations() {
-        let n1 = f64::from(animals / 2);
-        let n2 = n - n1;
-        if n1 < 2.0 {
-            return 0.0;
-        }
-        t_power(delta, (v / n1 + v / n2).sqrt(), n - 2.0, test.sided, alpha)
-    } else {
-        t_power(delta, (v / n).sqrt(), n - 1.0, test.sided, alpha)
-    }
+    group_se_df(test, animals, v).map_or(0.0, |(se, df)| t_power(delta, se, df, test.sided, alpha))
 }
 
 /// Approximate half-width t_{1−(1−level)/2, N−1}·√(v/N) of a group mean's interval.

@@ -19,7 +19,7 @@
 use super::GroupError;
 use super::animal_count_search::{Cache, Confirm, Fewest, MAX_EVALUATIONS, fewest_animals};
 use super::approximation::Approximation;
-use super::effort_search::{Search, best_for_budget, candidate_trials, goals, least_cost};
+use super::effort_search::{Goals, Search, best_for_budget, candidate_trials, goals, least_cost};
 use super::grid::{DesignSetup, per_condition_cap};
 use super::summary::GroupSummary;
 use crate::design::goals::Budget;
@@ -188,6 +188,46 @@ pub fn frontier_trials(line: &[u32], keep: &[u32], grid: &[u32]) -> Vec<u32> {
     rows
 }
 
+/// The trial counts per condition the split searches: the design's smallest listed count to
+/// the cap (or `max_trials`).
+pub fn search_range(setup: &DesignSetup) -> [u32; 2] {
+    let plan = setup.plan;
+    let design = setup.design;
+    let cap = per_condition_cap(design, plan.animals().as_ref().and_then(|a| a.trial_cap));
+    let hi = cap
+        .unwrap_or(plan.study().max_trials)
+        .min(plan.study().max_trials);
+    [design.trials.first().copied().unwrap_or(2).min(hi), hi]
+}
+
+/// The approximate search of a design at `trials` per condition (empty: every candidate
+/// count of [`search_range`]).
+pub fn approximate_search<'a>(
+    setup: &'a DesignSetup,
+    approximation: &Approximation,
+    goals: &'a Goals,
+    budget: Budget,
+    trials: &[u32],
+) -> Search<'a> {
+    let candidates = if trials.is_empty() {
+        let [lo, hi] = search_range(setup);
+        candidate_trials(setup.design, lo, hi)
+    } else {
+        trials.to_vec()
+    };
+    let plan = setup.plan;
+    Search::new(
+        approximation,
+        &setup.tests,
+        goals,
+        budget,
+        setup.design.conditions.len() as u32,
+        plan.study().alpha,
+        plan.study().confidence,
+        &candidates,
+    )
+}
+
 /// Runs the effort split of one design; `Ok(Err(note))` says why there is none.
 pub fn effort_split(
     setup: &DesignSetup,
@@ -219,22 +259,8 @@ pub fn effort_split(
     progress(Event::Start(Phase::EffortSplit {
         design: design.name.clone(),
     }));
-    let cap = per_condition_cap(design, plan.animals().as_ref().and_then(|a| a.trial_cap));
-    let hi = cap
-        .unwrap_or(plan.study().max_trials)
-        .min(plan.study().max_trials);
-    let lo = design.trials.first().copied().unwrap_or(2).min(hi);
-    let trials = candidate_trials(design, lo, hi);
-    let search = Search::new(
-        &approximation,
-        &setup.tests,
-        &goals,
-        budget,
-        design.conditions.len() as u32,
-        plan.study().alpha,
-        plan.study().confidence,
-        &trials,
-    );
+    let [lo, hi] = search_range(setup);
+    let search = approximate_search(setup, &approximation, &goals, budget, &[]);
     let mut split = EffortSplit {
         budget,
         trials_range: [lo, hi],

@@ -13,6 +13,8 @@ pub const TABLE_KEYS: &[(&str, &[&str])] = &[
             "targets",
             "animals",
             "budget",
+            "sensitivity",
+            "assurance",
         ],
     ),
     (
@@ -91,6 +93,7 @@ pub const TABLE_KEYS: &[(&str, &[&str])] = &[
         ],
     ),
     ("budget", &["cost_per_animal", "cost_per_trial", "total"]),
+    ("assurance", &["draws", "target", "uncertain"]),
     (
         "scale",
         &[
@@ -107,6 +110,19 @@ pub const TABLE_KEYS: &[(&str, &[&str])] = &[
 pub fn allowed(key: &str) -> &'static str {
     match key {
         "study" => "a [study] table with title and seed",
+        "sensitivity" => {
+            "a [sensitivity] table of assumption = [values], e.g. \"observer.d_prime\" = [0.8, 1.0, 1.2] (docs/plan-format.md)"
+        }
+        "assurance" => {
+            "an [assurance] table with draws and target, and [assurance.uncertain] entries such as \"observer.d_prime\" = { sd = 0.15 }"
+        }
+        "draws" => {
+            "values drawn for the assurance, a whole number from 100 to 1000000 (default 2000)"
+        }
+        "target" => "the assurance the search must reach, strictly between 0 and 1, e.g. 0.9",
+        "uncertain" => {
+            "a table [assurance.uncertain] of assumption = { sd = S, low = L, high = H }"
+        }
         "observer" => "an [observer] table with d_prime and criterion",
         "design" => "one or more [[design]] tables",
         "title" => "text in quotes, e.g. title = \"Alarm-call playback, pilot\"",

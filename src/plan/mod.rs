@@ -4,6 +4,7 @@
 //! types; `validate` turns it into a [`Plan`] whose values the rest of the program trusts
 //! without checking again. Every rejection is a [`PlanError`] naming file, line and key.
 
+pub mod assumptions;
 mod error;
 mod keys;
 mod locate;
@@ -91,6 +92,14 @@ pub struct Plan {
     targets: Targets,
     animals: Option<Animals>,
     budget: Option<Budget>,
+    /// `[sensitivity]` and `[assurance]`, when given.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    sensitivity: Option<assumptions::Sensitivity>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    assurance: Option<assumptions::AssuranceSpec>,
+    /// The plan's text (variants for sensitivity and assurance are written from it).
+    #[serde(skip)]
+    text: String,
 }
 
 /// Largest number of simulated experiments per scenario a plan or `--experiments` may ask
@@ -154,6 +163,47 @@ impl Plan {
     /// `[budget]`, when given.
     pub fn budget(&self) -> &Option<Budget> {
         &self.budget
+    }
+
+    /// `[sensitivity]`, when given.
+    pub fn sensitivity(&self) -> Option<&assumptions::Sensitivity> {
+        self.sensitivity.as_ref()
+    }
+    /// `[assurance]`, when given.
+    pub fn assurance(&self) -> Option<&assumptions::AssuranceSpec> {
+        self.assurance.as_ref()
+    }
+
+    /// The plan with the assumptions `values` replaced and without `[sensitivity]` and
+    /// `[assurance]`, validated from the start (so everything derived from a value follows
+    /// it). The experiments, precision and every other setting stay as they are.
+    pub fn with_values(
+        &self,
+        values: &[(&assumptions::AssumptionKey, f64)],
+    ) -> Result<Plan, PlanError> {
+        let problem = |problem: String| PlanError {
+            file: self.source.clone(),
+            line: None,
+            key: "(variant)".into(),
+            problem,
+            allowed: String::new(),
+        };
+        let mut table: toml::Table =
+            toml::from_str(&self.text).map_err(|e| problem(e.to_string()))?;
+        table.remove("sensitivity");
+        table.remove("assurance");
+        for (key, v) in values {
+            key.set_in(&mut table, *v).map_err(problem)?;
+        }
+        let text = toml::to_string(&table).map_err(|e| problem(e.to_string()))?;
+        let mut plan = Self::from_str(&self.source, &text)?;
+        // A `--experiments` override or other in-memory change carries over.
+        plan.study = Study {
+            precision: self.study.precision,
+            experiments: self.study.experiments,
+            ..plan.study
+        };
+        Ok(plan)
     }
 
     /// The same plan with exactly `experiments` simulated experiments per scenario (the

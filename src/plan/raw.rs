@@ -19,6 +19,19 @@ pub struct RawPlan {
     pub targets: Option<RawTargets>,
     pub animals: Option<RawAnimals>,
     pub budget: Option<RawBudget>,
+    /// `[sensitivity]`: assumption key → values to try (checked in `validate::uncertainty`).
+    pub sensitivity: Option<Spanned<toml::Table>>,
+    pub assurance: Option<Spanned<RawAssurance>>,
+}
+
+/// `[assurance]`: distributions of uncertain assumptions and what to do with them.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawAssurance {
+    pub draws: Option<Spanned<i64>>,
+    pub target: Option<Spanned<f64>>,
+    /// Assumption key → `{ sd, low, high }`.
+    pub uncertain: Option<Spanned<toml::Table>>,
 }
 
 /// `[study]`: what is simulated and how results are summarised.

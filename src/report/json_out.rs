@@ -18,6 +18,8 @@ struct Document<'a> {
     searches: &'a [crate::search::SearchResult],
     #[serde(skip_serializing_if = "Option::is_none")]
     groups: Option<&'a crate::groups::GroupReport>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    uncertainty: Option<&'a crate::uncertainty::UncertaintyReport>,
     caution: &'static str,
 }
 
@@ -28,6 +30,7 @@ pub fn render(
     searches: &[crate::search::SearchResult],
     groups: Option<&crate::groups::GroupReport>,
     advice: &crate::analytic::advice::RunAdvice,
+    uncertainty: Option<&crate::uncertainty::UncertaintyReport>,
 ) -> serde_json::Result<Vec<u8>> {
     let doc = Document {
         tool: "vigil",
@@ -39,6 +42,7 @@ pub fn render(
         advice,
         searches,
         groups,
+        uncertainty,
         caution: super::CAUTION,
     };
     let mut bytes = serde_json::to_vec_pretty(&doc)?;

@@ -32,6 +32,7 @@ pub mod shard_text;
 pub mod style;
 pub mod tables;
 pub mod terminal;
+pub mod uncertainty_text;
 pub mod verdict;
 pub mod workload_text;
 

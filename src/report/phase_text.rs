@@ -16,6 +16,7 @@ pub fn bar_label(phase: &Phase) -> String {
         } => format!("search {design}: round {round}, {trials} trials"),
         Phase::GroupsGrid { design } => format!("groups grid {design}"),
         Phase::EffortSplit { design } => format!("effort split {design}"),
+        Phase::Assumptions { design } => format!("assumptions {design}"),
         Phase::Part { index, of } => format!("part {index}/{of}"),
         Phase::Checkpointed { resumed: false } => "fixed points (checkpointed)".into(),
         Phase::Checkpointed { resumed: true } => "fixed points (resumed)".into(),
@@ -38,7 +39,9 @@ pub fn log_line(phase: &Phase, units: u64, seconds: f64) -> String {
             round,
             trials,
         } => format!(" design={} round={round} trials={trials}", quoted(design)),
-        Phase::GroupsGrid { design } | Phase::EffortSplit { design } => {
+        Phase::GroupsGrid { design }
+        | Phase::EffortSplit { design }
+        | Phase::Assumptions { design } => {
             format!(" design={}", quoted(design))
         }
         Phase::Part { index, of } => format!(" part={index}/{of}"),

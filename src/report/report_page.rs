@@ -23,6 +23,7 @@ pub struct ReportContent<'a> {
     pub groups: Option<&'a GroupReport>,
     /// What the expected information advises for each design (the terminal report's readings).
     pub advice: &'a crate::analytic::advice::RunAdvice,
+    pub uncertainty: Option<&'a crate::uncertainty::UncertaintyReport>,
     pub figures: &'a [Svg],
     /// Other files of the folder, with what each holds.
     pub files: &'a [(String, String)],
@@ -145,7 +146,16 @@ pub fn build(c: &ReportContent) -> Page {
     // window it was made in.
     b.push(PageBlock::Pre(super::layout::with_layout(
         super::layout::Layout::default(),
-        || terminal::render_run(plan, c.summaries, c.searches, c.groups, c.advice),
+        || {
+            terminal::render_run(
+                plan,
+                c.summaries,
+                c.searches,
+                c.groups,
+                c.advice,
+                c.uncertainty,
+            )
+        },
     )));
     b.push(PageBlock::Heading(2, "The resolved plan".into()));
     b.push(PageBlock::Paragraph(

@@ -25,11 +25,18 @@ pub fn render_run(
     searches: &[crate::search::SearchResult],
     groups: Option<&crate::groups::GroupReport>,
     advice: &RunAdvice,
+    uncertainty: Option<&crate::uncertainty::UncertaintyReport>,
 ) -> String {
     let mut out = render_designs(plan, summaries, advice);
     out.push_str(&super::verdict::render(searches, plan.study().max_trials));
     if let Some(g) = groups {
         out.push_str(&super::groups_text::render_section(plan, g));
+    }
+    if let Some(u) = uncertainty {
+        out.push_str(&super::uncertainty_text::render_section(
+            u,
+            plan.study().experiments,
+        ));
     }
     let _ = writeln!(out, "Caution: {CAUTION}");
     super::layout::wrap_prose(&out)

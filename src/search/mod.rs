@@ -242,6 +242,94 @@ fn value(s: &ScenarioSummary, t: &Target) -> TargetValue {
     }
 }
 
+/// The smallest count meeting every target under the expected information: a geometric grid
+/// from the smallest valid count to `max_trials`, refined by bisection (`None`: not reached).
+fn asymptotic_smallest(
+    plan: &Plan,
+    design: &Design,
+    targets: &[Target],
+    contrasts: &[(Contrast, &Hypothesis)],
+    half_widths: &[(Quantity, f64)],
+) -> Option<u32> {
+    let lo_valid = smallest_valid(design);
+    let max = plan.study().max_trials.max(lo_valid);
+    let meets = |n: u32| {
+        asymptotic::at(plan, design, n, contrasts, half_widths)
+            .is_some_and(|p| asymptotic_meets(&p, targets))
+    };
+    let mut last_fail = lo_valid.saturating_sub(1);
+    let mut n = lo_valid;
+    loop {
+        if meets(n) {
+            let (mut lo, mut hi) = (last_fail, n);
+            while hi - lo > 1 {
+                let mid = lo + (hi - lo) / 2;
+                if meets(mid) { hi = mid } else { lo = mid }
+            }
+            return Some(hi);
+        }
+        if n >= max {
+            return None;
+        }
+        last_fail = n;
+        n = ((f64::from(n) * 1.25).ceil() as u32).min(max);
+    }
+}
+
+/// The expected-information view of one design's search: the smallest count meeting every
+/// target (`None`: not reached by `max_trials`) and the power of each power target there.
+#[derive(Debug, Clone, PartialEq)]
+pub struct AsymptoticAnswer {
+    pub trials: Option<u32>,
+    /// The hypotheses with a power target, in plan order, with their targets.
+    pub hypotheses: Vec<(String, f64)>,
+}
+
+/// The asymptotic answer of design `d`; `None` when the plan sets no target it can be judged on.
+pub fn asymptotic_answer(plan: &Plan, d: usize) -> Option<AsymptoticAnswer> {
+    let design = &plan.designs()[d];
+    let (targets, contrasts) = targets_for(plan, design);
+    if targets.is_empty() {
+        return None;
+    }
+    let half_widths = half_width_targets(&targets);
+    Some(AsymptoticAnswer {
+        trials: asymptotic_smallest(plan, design, &targets, &contrasts, &half_widths),
+        hypotheses: power_targets(&targets),
+    })
+}
+
+/// Normal-approximation power of each power target of design `d` at `trials` per condition
+/// (empty when the information is singular there or no hypothesis has a target).
+pub fn asymptotic_power(plan: &Plan, d: usize, trials: u32) -> Vec<f64> {
+    let design = &plan.designs()[d];
+    let (_, contrasts) = targets_for(plan, design);
+    asymptotic::at(plan, design, trials, &contrasts, &[]).map_or(Vec::new(), |p| p.power)
+}
+
+fn half_width_targets(targets: &[Target]) -> Vec<(Quantity, f64)> {
+    targets
+        .iter()
+        .filter_map(|t| match t {
+            Target::HalfWidth { quantity, at_most } => Some((*quantity, *at_most)),
+            _ => None,
+        })
+        .collect()
+}
+
+fn power_targets(targets: &[Target]) -> Vec<(String, f64)> {
+    targets
+        .iter()
+        .filter_map(|t| match t {
+            Target::Power {
+                hypothesis,
+                at_least,
+            } => Some((hypothesis.clone(), *at_least)),
+            _ => None,
+        })
+        .collect()
+}
+
 /// Searches one design.
 pub fn search_design(
     plan: &Plan,
@@ -258,40 +346,11 @@ pub fn search_design(
     if targets.is_empty() {
         return Ok(result(SearchOutcome::NoTargets, Vec::new()));
     }
-    let half_widths: Vec<(Quantity, f64)> = targets
-        .iter()
-        .filter_map(|t| match t {
-            Target::HalfWidth { quantity, at_most } => Some((*quantity, *at_most)),
-            _ => None,
-        })
-        .collect();
+    let half_widths = half_width_targets(&targets);
     let lo_valid = smallest_valid(design);
     let max = plan.study().max_trials.max(lo_valid);
-    let asym = |n: u32| asymptotic::at(plan, design, n, &contrasts, &half_widths);
     // 1. Bracket with the expected information on a geometric grid, refined by bisection.
-    let mut asymptotic_trials = None;
-    let mut last_fail = lo_valid.saturating_sub(1);
-    let mut n = lo_valid;
-    loop {
-        if asym(n).is_some_and(|p| asymptotic_meets(&p, &targets)) {
-            let (mut lo, mut hi) = (last_fail, n);
-            while hi - lo > 1 {
-                let mid = lo + (hi - lo) / 2;
-                if asym(mid).is_some_and(|p| asymptotic_meets(&p, &targets)) {
-                    hi = mid
-                } else {
-                    lo = mid
-                }
-            }
-            asymptotic_trials = Some(hi);
-            break;
-        }
-        if n >= max {
-            break;
-        }
-        last_fail = n;
-        n = ((f64::from(n) * 1.25).ceil() as u32).min(max);
-    }
+    let asymptotic_trials = asymptotic_smallest(plan, design, &targets, &contrasts, &half_widths);
     // 2. Confirm with Monte Carlo: find a failing and a passing count, then bisect.
     let mut evaluated: Vec<SearchPoint> = Vec::new();
     let mut eval = |n: u32| -> Result<(bool, Vec<TargetValue>), RunError> {

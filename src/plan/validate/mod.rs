@@ -14,6 +14,7 @@ mod runnable;
 mod scale;
 mod scale_placement;
 mod study;
+mod uncertainty;
 
 use super::keys::allowed;
 use super::locate::{key_path_of, line_of};
@@ -96,8 +97,15 @@ pub(super) fn validate(path: &Path, source: &str, raw: RawPlan) -> Result<Plan, 
     if let (Some(animals), Some(raw_animals)) = (goals.animals.as_mut(), raw.animals.as_ref()) {
         animals.slopes = animal_slopes::slopes(&ctx, raw_animals, &designs, observer.lapse)?;
     }
-    Ok(Plan {
+    // The plan's own values of the assumptions come from its text as TOML.
+    let table: toml::Table = toml::from_str(source).unwrap_or_default();
+    let sensitivity = uncertainty::sensitivity(&ctx, &raw, &table)?;
+    let assurance = uncertainty::assurance(&ctx, &raw, &table)?;
+    let plan = Plan {
         source: path.to_path_buf(),
+        text: source.to_string(),
+        sensitivity,
+        assurance,
         study,
         observer,
         criterion_rule: spec.rule(),
@@ -106,7 +114,9 @@ pub(super) fn validate(path: &Path, source: &str, raw: RawPlan) -> Result<Plan, 
         targets: goals.targets,
         animals: goals.animals,
         budget: goals.budget,
-    })
+    };
+    uncertainty::check_variants(&ctx, &plan)?;
+    Ok(plan)
 }
 
 /// A number for a message: the shortest form that reads back as `x`, in scientific notation

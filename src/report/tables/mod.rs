@@ -4,10 +4,12 @@
 //! always written, header only when the plan has nothing for it, so a script can rely on
 //! the set. Columns are documented in docs/outputs.md.
 
+pub mod assurance;
 pub mod effort;
 pub mod group_grid;
 pub mod power;
 pub mod search;
+pub mod sensitivity;
 
 use crate::engine::{Figure, ScenarioSummary, Share};
 use crate::groups::GroupReport;
@@ -15,12 +17,14 @@ use crate::plan::Plan;
 use crate::search::SearchResult;
 
 /// The file names, in the order they are written.
-pub const FILES: [&str; 5] = [
+pub const FILES: [&str; 7] = [
     "estimates.csv",
     "power.csv",
     "search.csv",
     "group_grid.csv",
     "effort.csv",
+    "sensitivity.csv",
+    "assurance.csv",
 ];
 
 /// The report folder's subfolder holding the tables.
@@ -34,6 +38,12 @@ pub fn describe(file: &str) -> &'static str {
         "search.csv" => "every point the sample-size search evaluated, one row per target",
         "group_grid.csv" => "the group grid: animals × trials × analysis × group test",
         "effort.csv" => "the effort frontier: every simulated allocation × driving test",
+        "sensitivity.csv" => {
+            "the answer for each value of each [sensitivity] assumption, corners simulated"
+        }
+        "assurance.csv" => {
+            "expected power over the [assurance] distributions, approximate and simulated"
+        }
         _ => "a table",
     }
 }
@@ -44,6 +54,7 @@ pub struct TableInputs<'a> {
     pub summaries: &'a [ScenarioSummary],
     pub searches: &'a [SearchResult],
     pub groups: Option<&'a GroupReport>,
+    pub uncertainty: Option<&'a crate::uncertainty::UncertaintyReport>,
 }
 
 /// Every table as (file name, bytes), in [`FILES`] order.
@@ -57,6 +68,14 @@ pub fn render(inputs: &TableInputs) -> Result<Vec<(&'static str, Vec<u8>)>, csv:
         (FILES[2], search::render(inputs.searches)?),
         (FILES[3], group_grid::render(inputs.groups)?),
         (FILES[4], effort::render(inputs.groups)?),
+        (
+            FILES[5],
+            sensitivity::render(inputs.uncertainty.and_then(|u| u.sensitivity.as_ref()))?,
+        ),
+        (
+            FILES[6],
+            assurance::render(inputs.uncertainty.and_then(|u| u.assurance.as_ref()))?,
+        ),
     ])
 }
 
