@@ -87,7 +87,8 @@ pub fn execute(prepared: PreparedReport, progress: &Progress<'_>) -> Result<Stri
         }),
         other => AppError::Internal(other.to_string()),
     })?;
-    let inputs = Inputs::new(plan, &summaries, &searches, groups.as_ref(), &scans);
+    let inputs = Inputs::new(plan, &summaries, &searches, groups.as_ref(), &scans)
+        .with_uncertainty(uncertainty.as_ref());
     let svgs = figures::all(&inputs).map_err(|e| AppError::Internal(e.to_string()))?;
     let internal = |e: &dyn std::fmt::Display| AppError::Internal(e.to_string());
     let csv = report::csv_out::render(plan, &summaries).map_err(|e| internal(&e))?;
@@ -101,7 +102,8 @@ pub fn execute(prepared: PreparedReport, progress: &Progress<'_>) -> Result<Stri
         uncertainty.as_ref(),
     )
     .map_err(|e| internal(&e))?;
-    let justification = report::justification::paragraphs(plan, &searches, groups.as_ref());
+    let justification =
+        report::justification::paragraphs(plan, &searches, groups.as_ref(), uncertainty.as_ref());
     let tables = report::tables::render(&report::tables::TableInputs {
         plan,
         summaries: &summaries,

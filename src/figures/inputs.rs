@@ -22,6 +22,8 @@ pub struct Inputs<'a> {
     /// Per design (plan order): the expected-information power of each hypothesis over the
     /// scan's grid.
     pub power_curves: Vec<Vec<PowerCurve>>,
+    /// `[sensitivity]` and `[assurance]` results, when the plan has them.
+    pub uncertainty: Option<&'a crate::uncertainty::UncertaintyReport>,
 }
 
 impl<'a> Inputs<'a> {
@@ -52,6 +54,18 @@ impl<'a> Inputs<'a> {
             groups,
             scans,
             power_curves,
+            uncertainty: None,
+        }
+    }
+
+    /// The same inputs with the sensitivity and assurance results.
+    pub fn with_uncertainty(
+        self,
+        uncertainty: Option<&'a crate::uncertainty::UncertaintyReport>,
+    ) -> Self {
+        Self {
+            uncertainty,
+            ..self
         }
     }
 

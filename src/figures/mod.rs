@@ -19,6 +19,7 @@ pub mod palette;
 pub mod power;
 pub mod precision;
 pub mod roc;
+pub mod sensitivity;
 pub mod tradeoff;
 
 pub use inputs::Inputs;
@@ -99,6 +100,14 @@ pub fn all(inputs: &Inputs) -> Result<Vec<Svg>, FigureError> {
             push(groups::frontier(
                 design,
                 &format!("effort-frontier-{}", slug(&design.design)),
+            )?);
+        }
+    }
+    if let Some(s) = inputs.uncertainty.and_then(|u| u.sensitivity.as_ref()) {
+        for d in &s.designs {
+            push(sensitivity::render(
+                d,
+                &format!("sensitivity-{}", slug(&d.design)),
             )?);
         }
     }

@@ -189,6 +189,33 @@ fn sections(out: &mut String, plan: &Plan) {
             plain(b.cost_per_trial)
         );
     }
+    if let Some(s) = plan.sensitivity() {
+        let each: Vec<String> = s
+            .sweeps
+            .iter()
+            .map(|w| {
+                let values: Vec<String> = w.values.iter().map(|v| plain(*v)).collect();
+                format!("{} at {}", w.key.label(), values.join(", "))
+            })
+            .collect();
+        let _ = writeln!(out, "sensitivity: {}", each.join("; "));
+    }
+    if let Some(a) = plan.assurance() {
+        let each: Vec<String> = a
+            .uncertain
+            .iter()
+            .map(super::uncertainty_text::prior_text)
+            .collect();
+        let target = a
+            .target
+            .map_or(String::new(), |t| format!("; searching for {:.0}% assurance", 100.0 * t));
+        let _ = writeln!(
+            out,
+            "assurance: {} drawn sets of {}{target}",
+            a.draws,
+            each.join("; ")
+        );
+    }
 }
 
 /// The plan's own spelling of a kind of hypothesis.

@@ -26,11 +26,15 @@ pub fn paragraphs(
     plan: &Plan,
     searches: &[SearchResult],
     groups: Option<&GroupReport>,
+    uncertainty: Option<&crate::uncertainty::UncertaintyReport>,
 ) -> Vec<String> {
     let mut out = Vec::new();
     match groups {
         Some(g) => out.extend(group_paragraph(plan, g)),
         None => out.extend(search_paragraphs(plan, searches)),
+    }
+    if let Some(u) = uncertainty {
+        out.extend(super::uncertainty_text::justification(u));
     }
     out.push(settings_sentence(plan));
     out.push(caution_sentence());

@@ -174,6 +174,7 @@ pub fn render(a: &PilotAnalysis) -> String {
             out.push_str("correlation = 0.0\n");
         }
     }
+    assurance_section(&mut out, a);
     out.push_str(
         "\n# Add what the study tests, for example:\n\
          # [[hypothesis]]\n\
@@ -182,6 +183,55 @@ pub fn render(a: &PilotAnalysis) -> String {
          # power = 0.8\n",
     );
     out
+}
+
+/// `[assurance]` with each value's sampling distribution from the pilot: a mean's is normal
+/// with the pilot's SE; an SD's is taken as normal with SD = the chi-square interval's
+/// half-width ÷ z (the interval is skewed, so this is a rough, stated approximation), kept ≥ 0.
+fn assurance_section(out: &mut String, a: &PilotAnalysis) {
+    let p = &a.population;
+    let z = crate::infer::z_critical(p.confidence);
+    let half = |s: &SdEstimate| (s.interval.high - s.interval.low) / (2.0 * z);
+    let file = a.data.file.display().to_string();
+    let _ = writeln!(
+        out,
+        "\n# How uncertain {file} leaves these values, for the assurance (expected power over"
+    );
+    out.push_str(
+        "# them; docs/plan-format.md): a mean as normal with its pilot SE; an SD as normal with the\n\
+         # half-width of its interval ÷ z as SD, kept ≥ 0 (a rough form of a skewed interval).\n",
+    );
+    out.push_str("[assurance]\ndraws = 2000\n");
+    out.push_str(
+        "target = 0.9   # once the study has a hypothesis with a power target: the cheapest design\n\
+         \x20              # whose expected power reaches 90%\n",
+    );
+    out.push_str("[assurance.uncertain]\n");
+    let _ = writeln!(
+        out,
+        "\"observer.d_prime\" = {{ sd = {:.3}, low = 0 }}",
+        p.d_prime.se
+    );
+    let _ = writeln!(
+        out,
+        "\"observer.criterion\" = {{ sd = {:.3} }}",
+        p.criterion.se
+    );
+    for (key, s) in [
+        ("animals.sd_d_prime", &p.sd_d_prime),
+        ("animals.sd_criterion", &p.sd_criterion),
+    ] {
+        let sd = half(s);
+        // A rounded SD of 0 is no uncertainty: the value stays the plan's point.
+        if sd >= 0.0005 {
+            let _ = writeln!(out, "\"{key}\" = {{ sd = {sd:.3}, low = 0 }}");
+        } else {
+            let _ = writeln!(
+                out,
+                "# {key}: its pilot interval has no width, so it is held at its value"
+            );
+        }
+    }
 }
 
 /// Mean criteria over conditions of the per-condition mean criteria (the plan's scale is

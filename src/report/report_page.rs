@@ -57,7 +57,7 @@ pub fn build(c: &ReportContent) -> Page {
         "Justification (a draft to edit)".into(),
     ));
     b.extend(
-        justification::paragraphs(plan, c.searches, c.groups)
+        justification::paragraphs(plan, c.searches, c.groups, c.uncertainty)
             .into_iter()
             .map(PageBlock::Paragraph),
     );
@@ -140,6 +140,9 @@ pub fn build(c: &ReportContent) -> Page {
                 b.push(PageBlock::Table { header, rows });
             }
         }
+    }
+    if let Some(u) = c.uncertainty {
+        b.extend(super::uncertainty_text::page_blocks(u, study.experiments));
     }
     b.push(PageBlock::Heading(2, "The whole terminal report".into()));
     // At the default width whatever the terminal is, so the page never depends on the

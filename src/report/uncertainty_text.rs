@@ -3,6 +3,7 @@
 
 use super::format::{plain, whole};
 use super::groups_text::power;
+use super::page::PageBlock;
 use super::style::{new_table, right_align};
 use crate::plan::assumptions::Uncertain;
 use crate::uncertainty::assured::{AssuredPoint, DesignAssurance};
@@ -94,18 +95,8 @@ fn spread_text(s: &AssumptionSweep) -> String {
     }
 }
 
-fn sensitivity_block(out: &mut String, d: &DesignSensitivity, experiments_note: &str) {
-    let _ = writeln!(
-        out,
-        "Sensitivity of \"{}\": the answer is {} (expected information), one assumption moved at a time, the others at the plan's values.",
-        d.design,
-        criterion_text(d.criterion)
-    );
-    let Some(plan_answer) = &d.plan_answer else {
-        let _ = writeln!(out, "At the plan's values the targets are out of reach.");
-        return;
-    };
-    let _ = writeln!(out, "At the plan's values: {}.", answer_text(plan_answer));
+/// The sweep table of a design: header and rows (one per assumption × value).
+pub fn sweep_table(d: &DesignSensitivity, plan_answer: &Answer) -> (Vec<String>, Vec<Vec<String>>) {
     let mut header = vec!["assumption".to_string(), "value".into(), "answer".into()];
     if plan_answer.cost.is_some() {
         header.push("cost".into());
@@ -116,8 +107,7 @@ fn sensitivity_block(out: &mut String, d: &DesignSensitivity, experiments_note: 
             chosen_text(&plan_answer.chosen)
         ));
     }
-    let numeric = header.len() - 2;
-    let mut t = new_table(header.iter().map(String::as_str).collect());
+    let mut rows = Vec::new();
     for s in &d.sweeps {
         for (k, p) in s.points.iter().enumerate() {
             let mut row = vec![
@@ -150,31 +140,27 @@ fn sensitivity_block(out: &mut String, d: &DesignSensitivity, experiments_note: 
                         .map_or_else(|| "–".into(), |x| format!("{x:.2}")),
                 );
             }
-            t.add_row(row);
+            rows.push(row);
         }
     }
-    right_align(&mut t, 1..2 + numeric);
-    let _ = writeln!(out, "{t}");
-    let corners: Vec<_> = d
+    (header, rows)
+}
+
+/// The corner table of a design (empty rows when no corner was simulated).
+pub fn corner_table(d: &DesignSensitivity) -> (Vec<String>, Vec<Vec<String>>) {
+    let mut header = vec!["assumption".to_string(), "value".into(), "design".into()];
+    for (name, target) in &d.tests {
+        header.push(match target {
+            Some(t) => format!("power \"{name}\" (target {})", plain(*t)),
+            None => format!("power \"{name}\""),
+        });
+    }
+    header.push("meets".into());
+    let rows = d
         .sweeps
         .iter()
         .flat_map(|s| s.corners.iter().map(move |c| (s, c)))
-        .collect();
-    if !corners.is_empty() {
-        let _ = writeln!(
-            out,
-            "Monte Carlo at the corners: each assumption's lowest and highest value, at the answer the approximation gives there{experiments_note}:"
-        );
-        let mut header = vec!["assumption".to_string(), "value".into(), "design".into()];
-        for (name, target) in &d.tests {
-            header.push(match target {
-                Some(t) => format!("power \"{name}\" (target {})", plain(*t)),
-                None => format!("power \"{name}\""),
-            });
-        }
-        header.push("meets".into());
-        let mut t = new_table(header.iter().map(String::as_str).collect());
-        for (s, c) in corners {
+        .map(|(s, c)| {
             let mut row = vec![s.label.clone(), plain(c.value), chosen_text(&c.chosen)];
             row.extend(c.power.iter().map(power));
             row.push(match c.meets_targets {
@@ -182,10 +168,52 @@ fn sensitivity_block(out: &mut String, d: &DesignSensitivity, experiments_note: 
                 Some(false) => "no".into(),
                 None => "–".into(),
             });
-            t.add_row(row);
-        }
-        right_align(&mut t, 1..2);
-        let _ = writeln!(out, "{t}");
+            row
+        })
+        .collect();
+    (header, rows)
+}
+
+fn text_table(header: &[String], rows: Vec<Vec<String>>, right: &[(usize, usize)]) -> String {
+    let mut t = new_table(header.iter().map(String::as_str).collect());
+    for row in rows {
+        t.add_row(row);
+    }
+    for &(from, to) in right {
+        right_align(&mut t, from..to);
+    }
+    t.to_string()
+}
+
+/// The first line of a design's sensitivity.
+fn sensitivity_intro(d: &DesignSensitivity) -> String {
+    format!(
+        "Sensitivity of \"{}\": the answer is {} (expected information), one assumption moved at a time, the others at the plan's values.",
+        d.design,
+        criterion_text(d.criterion)
+    )
+}
+
+fn corners_intro(experiments: u64) -> String {
+    format!(
+        "Monte Carlo at the corners: each assumption's lowest and highest value, at the answer the approximation gives there, {experiments} simulated studies each:"
+    )
+}
+
+fn sensitivity_block(out: &mut String, d: &DesignSensitivity, experiments: u64) {
+    let _ = writeln!(out, "{}", sensitivity_intro(d));
+    let Some(plan_answer) = &d.plan_answer else {
+        let _ = writeln!(out, "At the plan's values the targets are out of reach.");
+        return;
+    };
+    let _ = writeln!(out, "At the plan's values: {}.", answer_text(plan_answer));
+    let (header, rows) = sweep_table(d, plan_answer);
+    let n = header.len();
+    let _ = writeln!(out, "{}", text_table(&header, rows, &[(1, 2), (3, n)]));
+    let (header, rows) = corner_table(d);
+    if !rows.is_empty() {
+        let _ = writeln!(out, "{}", corners_intro(experiments));
+        let _ = writeln!(out, "{}", text_table(&header, rows, &[(1, 2)]));
     }
     if let Some(r) = sensitivity_reading(d) {
         let _ = writeln!(out, "Reading: {r}");
@@ -217,24 +245,17 @@ pub fn prior_text(u: &Uncertain) -> String {
     s
 }
 
-fn point_row(label: String, p: &AssuredPoint) -> Vec<Vec<String>> {
+fn point_rows(label: String, p: &AssuredPoint) -> Vec<Vec<String>> {
     p.tests
         .iter()
         .zip(&p.simulated)
         .enumerate()
         .map(|(i, (t, sim))| {
+            let first = |x: String| if i == 0 { x } else { String::new() };
             vec![
-                if i == 0 { label.clone() } else { String::new() },
-                if i == 0 {
-                    chosen_text(&p.chosen)
-                } else {
-                    String::new()
-                },
-                if i == 0 {
-                    p.cost.map_or_else(|| "–".into(), whole)
-                } else {
-                    String::new()
-                },
+                first(label.clone()),
+                first(chosen_text(&p.chosen)),
+                first(p.cost.map_or_else(|| "–".into(), whole)),
                 format!("\"{}\"", t.name),
                 format!("{:.2}", t.assurance.point_power),
                 format!("{:.3} ± {:.3}", t.assurance.value, t.assurance.mc_se),
@@ -242,6 +263,32 @@ fn point_row(label: String, p: &AssuredPoint) -> Vec<Vec<String>> {
             ]
         })
         .collect()
+}
+
+/// The assurance table of a design: the plan's answer and the assured design.
+pub fn assurance_table(
+    target: Option<f64>,
+    d: &DesignAssurance,
+) -> (Vec<String>, Vec<Vec<String>>) {
+    let header = [
+        "",
+        "design",
+        "cost",
+        "test",
+        "≈ power at plan's values",
+        "≈ assurance ± MC SE",
+        "simulated assurance",
+    ]
+    .map(String::from)
+    .to_vec();
+    let mut rows = Vec::new();
+    if let Some(p) = &d.at_plan_answer {
+        rows.extend(point_rows("plan's answer".into(), p));
+    }
+    if let (Some(p), Some(target)) = (&d.assured, target) {
+        rows.extend(point_rows(format!("assured ({:.0}%)", 100.0 * target), p));
+    }
+    (header, rows)
 }
 
 /// The sentence a proposal can quote: "With 90% assurance: 22 animals × 40 trials …".
@@ -273,9 +320,8 @@ pub fn assured_sentence(target: f64, d: &DesignAssurance) -> Option<String> {
     ))
 }
 
-fn assurance_block(out: &mut String, r: &AssuranceReport) {
-    let _ = writeln!(
-        out,
+fn assurance_intro(r: &AssuranceReport) -> String {
+    format!(
         "Assurance: the expected power when the assumptions below are uncertain, over {} drawn sets of values (O'Hagan, Stevens & Campbell 2005). Each set's power is the expected-information approximation; the simulated column runs one study per drawn set ({} studies).",
         r.draws,
         r.designs
@@ -286,76 +332,168 @@ fn assurance_block(out: &mut String, r: &AssuranceReport) {
                 .or(d.assured.as_ref())
                 .map(|p| p.studies))
             .unwrap_or(0)
-    );
+    )
+}
+
+fn failed_note(r: &AssuranceReport) -> Option<String> {
+    (r.failed_draws > 0).then(|| {
+        format!(
+            "Note: {} of the {} drawn sets make a plan vigil refuses; they are left out.",
+            r.failed_draws, r.draws
+        )
+    })
+}
+
+/// The assured sentence, or why there is none.
+fn outcome_line(r: &AssuranceReport, d: &DesignAssurance) -> Option<String> {
+    let target = r.target?;
+    assured_sentence(target, d).or_else(|| d.note.as_ref().map(|n| format!("Note: {n}.")))
+}
+
+/// Assurance rests on its distributions: said under every assurance.
+pub const DISTRIBUTIONS_CAUTION: &str =
+    "The distributions are assumptions too: the assurance is only as good as they are.";
+
+fn assurance_block(out: &mut String, r: &AssuranceReport) {
+    let _ = writeln!(out, "{}", assurance_intro(r));
     for u in &r.uncertain {
         let _ = writeln!(out, "  {}", prior_text(u));
     }
-    if r.failed_draws > 0 {
-        let _ = writeln!(
-            out,
-            "Note: {} of the {} drawn sets make a plan vigil refuses; they are left out.",
-            r.failed_draws, r.draws
-        );
+    if let Some(n) = failed_note(r) {
+        let _ = writeln!(out, "{n}");
     }
     for d in &r.designs {
         let _ = writeln!(out, "\"{}\" ({}):", d.design, criterion_text(d.criterion));
-        let header = vec![
-            "",
-            "design",
-            "cost",
-            "test",
-            "≈ power at plan's values",
-            "≈ assurance ± MC SE",
-            "simulated assurance",
-        ];
-        let mut t = new_table(header);
-        let mut rows = Vec::new();
-        if let Some(p) = &d.at_plan_answer {
-            rows.extend(point_row("plan's answer".into(), p));
+        let (header, rows) = assurance_table(r.target, d);
+        let _ = writeln!(out, "{}", text_table(&header, rows, &[(2, 3), (4, 7)]));
+        if let Some(line) = outcome_line(r, d) {
+            let _ = writeln!(out, "{line}");
         }
-        if let (Some(p), Some(target)) = (&d.assured, r.target) {
-            rows.extend(point_row(format!("assured ({:.0}%)", 100.0 * target), p));
+    }
+    let _ = writeln!(out, "{DISTRIBUTIONS_CAUTION}\n");
+}
+
+/// The justification's paragraphs: the assured answer (or the assurance at the plan's
+/// answer) with its distributions, and the assumption the answer depends on most.
+pub fn justification(u: &UncertaintyReport) -> Vec<String> {
+    let mut out = Vec::new();
+    if let Some(r) = &u.assurance {
+        let priors: Vec<String> = r.uncertain.iter().map(prior_text).collect();
+        for d in &r.designs {
+            let what = match (r.target, assured_sentence(r.target.unwrap_or(0.0), d)) {
+                (Some(_), Some(s)) => s,
+                _ => match &d.at_plan_answer {
+                    Some(p) => format!(
+                        "At {} per condition the expected power of \"{}\" over the uncertain values is {:.2} (power {:.2} at the point values).",
+                        chosen_text(&p.chosen),
+                        d.design,
+                        p.weakest(),
+                        p.tests
+                            .iter()
+                            .map(|t| t.assurance.point_power)
+                            .fold(f64::INFINITY, f64::min)
+                    ),
+                    None => continue,
+                },
+            };
+            out.push(format!(
+                "{what} The uncertain values were taken as {} ({} drawn sets). {DISTRIBUTIONS_CAUTION}",
+                priors.join("; "),
+                r.draws
+            ));
         }
-        for row in rows {
-            t.add_row(row);
-        }
-        right_align(&mut t, 2..3);
-        right_align(&mut t, 4..7);
-        let _ = writeln!(out, "{t}");
-        if let Some(target) = r.target {
-            match assured_sentence(target, d) {
-                Some(s) => {
-                    let _ = writeln!(out, "{s}");
-                }
-                None => {
-                    if let Some(n) = &d.note {
-                        let _ = writeln!(out, "Note: {n}.");
-                    }
-                }
+    }
+    if let Some(s) = &u.sensitivity {
+        for d in &s.designs {
+            if let Some(r) = sensitivity_reading(d) {
+                out.push(format!("For \"{}\", {r}", d.design));
             }
         }
     }
-    let _ = writeln!(
-        out,
-        "The distributions are assumptions too: the assurance is only as good as they are.\n"
-    );
+    out
+}
+
+/// The report page's section.
+pub fn page_blocks(u: &UncertaintyReport, experiments: u64) -> Vec<PageBlock> {
+    let mut b = vec![PageBlock::Heading(2, "Uncertain assumptions".into())];
+    if let Some(s) = &u.sensitivity {
+        for d in &s.designs {
+            b.push(PageBlock::Heading(3, format!("Sensitivity: {}", d.design)));
+            b.push(PageBlock::Paragraph(sensitivity_intro(d)));
+            let Some(plan_answer) = &d.plan_answer else {
+                b.push(PageBlock::Paragraph(
+                    "At the plan's values the targets are out of reach.".into(),
+                ));
+                continue;
+            };
+            b.push(PageBlock::Paragraph(format!(
+                "At the plan's values: {}.",
+                answer_text(plan_answer)
+            )));
+            let (header, rows) = sweep_table(d, plan_answer);
+            b.push(PageBlock::Table { header, rows });
+            let (header, rows) = corner_table(d);
+            if !rows.is_empty() {
+                b.push(PageBlock::Paragraph(corners_intro(experiments)));
+                b.push(PageBlock::Table { header, rows });
+            }
+            if let Some(r) = sensitivity_reading(d) {
+                b.push(PageBlock::Paragraph(format!("Reading: {r}")));
+            }
+        }
+    }
+    if let Some(r) = &u.assurance {
+        b.push(PageBlock::Heading(3, "Assurance".into()));
+        b.push(PageBlock::Paragraph(assurance_intro(r)));
+        b.push(PageBlock::List(
+            r.uncertain.iter().map(prior_text).collect(),
+        ));
+        if let Some(n) = failed_note(r) {
+            b.push(PageBlock::Paragraph(n));
+        }
+        for d in &r.designs {
+            let (header, rows) = assurance_table(r.target, d);
+            b.push(PageBlock::Paragraph(format!(
+                "\"{}\" ({}):",
+                d.design,
+                criterion_text(d.criterion)
+            )));
+            b.push(PageBlock::Table { header, rows });
+            if let Some(line) = outcome_line(r, d) {
+                b.push(PageBlock::Paragraph(line));
+            }
+        }
+        b.push(PageBlock::Paragraph(DISTRIBUTIONS_CAUTION.into()));
+    }
+    b
 }
 
 /// The terminal section of both.
 pub fn render_section(u: &UncertaintyReport, experiments: u64) -> String {
     let mut out = String::new();
+    let nothing = |what: &str| {
+        format!(
+            "{what}: no design has a live hypothesis or a target to plan for, so there is nothing to move; add a [[hypothesis]] with a power target (or [targets]).\n\n"
+        )
+    };
     if let Some(s) = &u.sensitivity {
+        if s.designs.is_empty() {
+            out.push_str(&nothing("Sensitivity"));
+        }
         render_sensitivity(&mut out, s, experiments);
     }
     if let Some(a) = &u.assurance {
-        assurance_block(&mut out, a);
+        if a.designs.is_empty() {
+            out.push_str(&nothing("Assurance"));
+        } else {
+            assurance_block(&mut out, a);
+        }
     }
     out
 }
 
 fn render_sensitivity(out: &mut String, s: &SensitivityReport, experiments: u64) {
-    let note = format!(", {experiments} simulated studies each");
     for d in &s.designs {
-        sensitivity_block(out, d, &note);
+        sensitivity_block(out, d, experiments);
     }
 }
