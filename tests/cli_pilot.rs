@@ -423,3 +423,42 @@ fn one_named_condition_writes_a_plan_that_checks() {
     let check = vigil(dir.path(), &["check", "plan.toml"]);
     assert!(check.status.success(), "{}", stderr(&check));
 }
+
+/// The README's walk-through starts from `vigil pilot plans/pilot-vole-season.csv` and
+/// continues with plans/vole-pilot-assurance.toml: every value that plan takes from the
+/// pilot must be the one the skeleton holds (so the walk-through shows what the tool does).
+#[test]
+fn the_bundled_vole_plan_holds_the_pilot_skeletons_values() {
+    let dir = tempfile::tempdir().unwrap();
+    let csv = common::plans_dir().join("pilot-vole-season.csv");
+    let out = vigil(
+        dir.path(),
+        &["pilot", csv.to_str().unwrap(), "--plan-out", "plan.toml"],
+    );
+    assert!(out.status.success(), "{}", stderr(&out));
+    let read = |p: &Path| -> toml::Table {
+        toml::from_str(&std::fs::read_to_string(p).unwrap()).unwrap()
+    };
+    let skeleton = read(&dir.path().join("plan.toml"));
+    let bundled = read(&common::plans_dir().join("vole-pilot-assurance.toml"));
+    let at = |t: &toml::Table, path: &[&str]| -> toml::Value {
+        let mut v = toml::Value::Table(t.clone());
+        for k in path {
+            v = v.get(*k).unwrap_or_else(|| panic!("no {path:?}")).clone();
+        }
+        v
+    };
+    for path in [
+        &["observer", "d_prime"][..],
+        &["observer", "criterion"],
+        &["animals", "sd_d_prime"],
+        &["animals", "sd_criterion"],
+        &["animals", "correlation"],
+        &["study", "rate_correction"],
+        &["assurance", "draws"],
+        &["assurance", "target"],
+        &["assurance", "uncertain"],
+    ] {
+        assert_eq!(at(&skeleton, path), at(&bundled, path), "{path:?}");
+    }
+}

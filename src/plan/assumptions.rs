@@ -242,11 +242,41 @@ impl AssumptionKey {
         }
     }
 
-    /// Writes `value` into the plan's TOML.
+    /// Writes `value` into the plan's TOML. A new observer criterion moves every rating
+    /// scale's listed criteria with it (the spacing stays): a scale's boundary criterion is
+    /// the observer's, so the scale describes the same animal moved.
     pub fn set_in(&self, plan: &mut toml::Table, value: f64) -> Result<(), String> {
+        if (self.table, self.name) == ("observer", "criterion") {
+            let shift = value - self.value_in(plan)?;
+            shift_scales(plan, shift);
+        }
         let holder = self.holder(plan)?;
         holder.insert(self.name.to_string(), toml::Value::Float(value));
         Ok(())
+    }
+}
+
+/// Adds `shift` to every listed criterion of every design's scale.
+fn shift_scales(plan: &mut toml::Table, shift: f64) {
+    let Some(designs) = plan.get_mut("design").and_then(|d| d.as_array_mut()) else {
+        return;
+    };
+    for d in designs {
+        let Some(criteria) = d
+            .get_mut("scale")
+            .and_then(|s| s.get_mut("criteria"))
+            .and_then(|c| c.as_array_mut())
+        else {
+            continue;
+        };
+        for c in criteria {
+            let x = match c {
+                toml::Value::Float(x) => *x,
+                toml::Value::Integer(i) => *i as f64,
+                _ => continue,
+            };
+            *c = toml::Value::Float(x + shift);
+        }
     }
 }
 

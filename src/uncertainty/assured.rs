@@ -129,37 +129,7 @@ pub fn assurance(
             .iter()
             .map(|vs| vs.as_ref().and_then(|vs| vs[d].as_ref()))
             .collect();
-        let point = |chosen: Chosen| -> AssuredPoint {
-            let tests = view.tests();
-            let names: Vec<String> = tests.iter().map(|(n, _)| n.clone()).collect();
-            let point_power = view.power_at(chosen);
-            let powers: Vec<Vec<f64>> = per_draw
-                .par_iter()
-                .map(|v| v.map_or(Vec::new(), |v| v.power_at(chosen)))
-                .collect();
-            let tests = tests
-                .into_iter()
-                .enumerate()
-                .filter_map(|(t, (name, target))| {
-                    let a = summarise(
-                        point_power.get(t).copied().unwrap_or(f64::NAN),
-                        powers.iter().map(|p| p.get(t).copied()),
-                    )?;
-                    Some(TestAssurance {
-                        name,
-                        target,
-                        assurance: a,
-                    })
-                })
-                .collect();
-            AssuredPoint {
-                chosen,
-                cost: view.cost(chosen.animals.unwrap_or(0), chosen.trials),
-                tests,
-                simulated: nested_assurance(&variants[..studies], d, chosen, &names),
-                studies: studies as u64,
-            }
-        };
+        let point = |chosen: Chosen| point_at(view, &per_draw, &variants[..studies], d, chosen);
         let at_plan_answer = view.answer().map(|a| point(a.chosen));
         let (assured, note) = match spec.target {
             None => (None, None),
@@ -193,6 +163,61 @@ pub fn assurance(
         failed_draws,
         designs,
     })
+}
+
+/// The assurance of design `d` at `chosen`: per test, over the drawn views, and simulated
+/// with one study per plan in `simulate`.
+fn point_at(
+    view: &View,
+    per_draw: &[Option<&View>],
+    simulate: &[Option<Plan>],
+    d: usize,
+    chosen: Chosen,
+) -> AssuredPoint {
+    let tests = view.tests();
+    let names: Vec<String> = tests.iter().map(|(n, _)| n.clone()).collect();
+    let point_power = view.power_at(chosen);
+    let powers: Vec<Vec<f64>> = per_draw
+        .par_iter()
+        .map(|v| v.map_or(Vec::new(), |v| v.power_at(chosen)))
+        .collect();
+    let tests = tests
+        .into_iter()
+        .enumerate()
+        .filter_map(|(t, (name, target))| {
+            let a = summarise(
+                point_power.get(t).copied().unwrap_or(f64::NAN),
+                powers.iter().map(|p| p.get(t).copied()),
+            )?;
+            Some(TestAssurance {
+                name,
+                target,
+                assurance: a,
+            })
+        })
+        .collect();
+    AssuredPoint {
+        chosen,
+        cost: view.cost(chosen.animals.unwrap_or(0), chosen.trials),
+        tests,
+        simulated: nested_assurance(simulate, d, chosen, &names),
+        studies: simulate.len() as u64,
+    }
+}
+
+/// The assurance of design `d` of `plan` at `chosen` under `spec` (`None` when the plan
+/// plans nothing for the design).
+pub fn assurance_at(plan: &Plan, spec: &AssuranceSpec, d: usize, chosen: Chosen) -> Option<AssuredPoint> {
+    let variants = variants(plan, spec);
+    let all: Vec<Option<Vec<Option<View>>>> = variants.iter().map(|v| v.as_ref().map(views)).collect();
+    let per_draw: Vec<Option<&View>> = all
+        .iter()
+        .map(|vs| vs.as_ref().and_then(|vs| vs[d].as_ref()))
+        .collect();
+    let base = views(plan);
+    let view = base.get(d)?.as_ref()?;
+    let studies = (plan.study().experiments as usize).min(variants.len());
+    Some(point_at(view, &per_draw, &variants[..studies], d, chosen))
 }
 
 /// The cheapest design (fewest animals when nothing costs) whose every test's assurance

@@ -27,7 +27,7 @@ from golden_support import (
 from error_total_files import error_total_pmf, error_totals_information
 from rating_files import rating_equal_variance, rating_unequal_variance
 from pilot_files import pilot_moments
-from assurance_files import assurance
+from assurance_files import assurance, assurance_plan
 
 REFS = "tabulated"  # a check value fixed in advance and asserted to its stated precision
 # Check values fixed in advance that this script reproduces (see each function).
@@ -326,6 +326,7 @@ def main():
     error_total_pmf()
     pilot_moments()
     assurance()
+    assurance_plan()
     if PRINTED_CHECKS["count"] != EXPECTED_PRINTED_CHECKS:
         raise AssertionError(f"checked {PRINTED_CHECKS['count']} tabulated values, "
                              f"expected {EXPECTED_PRINTED_CHECKS}")

@@ -39,7 +39,8 @@ fn flatten(
 }
 
 /// An error on one entry of a section: the line is where the key's last part first appears
-/// in the section (TOML does not keep spans inside a free-form table).
+/// after the section's header (TOML keeps no spans inside a free-form table, and a table's
+/// span may cover its header only).
 fn entry_error(
     ctx: &Ctx,
     span: &Range<usize>,
@@ -47,9 +48,17 @@ fn entry_error(
     problem: String,
     allowed: String,
 ) -> PlanError {
+    let text = ctx.source.get(span.start..).unwrap_or("");
+    // The assumption as written (quoted form), else its last part (dotted form).
+    let entry = key
+        .strip_prefix("assurance.uncertain.")
+        .or_else(|| key.strip_prefix("sensitivity."))
+        .unwrap_or(key);
     let last = key.rsplit('.').next().unwrap_or(key);
-    let text = ctx.source.get(span.clone()).unwrap_or("");
-    let offset = text.find(last).map_or(span.start, |i| span.start + i);
+    let offset = text
+        .find(entry)
+        .or_else(|| text.find(last))
+        .map_or(span.start, |i| span.start + i);
     PlanError {
         file: ctx.path.to_path_buf(),
         line: Some(line_of(ctx.source, offset)),
