@@ -126,7 +126,12 @@ fn the_assured_design_reaches_the_target_and_one_animal_fewer_does_not() {
         ..assured.chosen
     };
     let p = assurance_at(&plan, spec, 0, fewer).unwrap();
-    assert!(p.weakest() < target, "{} animals: {}", animals - 1, p.weakest());
+    assert!(
+        p.weakest() < target,
+        "{} animals: {}",
+        animals - 1,
+        p.weakest()
+    );
     // The plan's own answer (80% power at the pilot's values) falls short of 90% assurance.
     let at_answer = design.at_plan_answer.as_ref().unwrap();
     assert!(at_answer.weakest() < target);
@@ -168,4 +173,23 @@ fn draws_do_not_depend_on_the_thread_count() {
             .install(|| vigil::uncertainty::run(&plan, &|_| {}).unwrap().unwrap())
     };
     assert_eq!(run(1), run(2));
+}
+
+#[test]
+fn the_justification_states_the_assured_design() {
+    let plan = vole_plan();
+    let u = vigil::uncertainty::run(&plan, &|_| {}).unwrap().unwrap();
+    let text = vigil::report::justification::paragraphs(&plan, &[], None, Some(&u)).join("\n");
+    let d = &u.assurance.as_ref().unwrap().designs[0];
+    let p = d.assured.as_ref().unwrap();
+    let expected = format!(
+        "With 90% assurance, \"{}\" needs {} animals × {} trials per condition (cost {:.0})",
+        d.design,
+        p.chosen.animals.unwrap(),
+        p.chosen.trials,
+        p.cost.unwrap()
+    );
+    assert!(text.contains(&expected), "{expected}\nnot in:\n{text}");
+    assert!(text.contains("assumptions too"), "{text}");
+    assert!(text.contains("depends most on"), "{text}");
 }

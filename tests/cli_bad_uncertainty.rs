@@ -26,7 +26,10 @@ fn values_must_be_a_list_of_distinct_numbers_in_range() {
         ("\"observer.d_prime\" = [1.0]", "1 values"),
         ("\"observer.d_prime\" = [1.0, 1.0]", "twice"),
         ("\"observer.d_prime\" = [1.0, \"x\"]", "not a number"),
-        ("\"animals.sd_criterion\" = [-0.1, 0.2]", "outside the range"),
+        (
+            "\"animals.sd_criterion\" = [-0.1, 0.2]",
+            "outside the range",
+        ),
     ] {
         let (text, n) = plan(&format!("[sensitivity]\n{entry}\n"));
         let key = entry.split(" =").next().unwrap().trim_matches('"');
@@ -47,10 +50,22 @@ fn a_value_the_plan_format_refuses_is_refused_at_the_entry() {
 fn a_distribution_must_give_an_sd_and_a_range_holding_the_plan_value() {
     for (entry, problem) in [
         ("\"observer.criterion\" = { low = -1 }", "no `sd`"),
-        ("\"observer.criterion\" = { sd = -0.1 }", "not a finite number ≥ 0"),
-        ("\"observer.criterion\" = { sd = 0.1, low = 0 }", "does not hold"),
-        ("\"observer.criterion\" = { sd = 0.1, mean = 0 }", "`mean` is not a key"),
-        ("\"animals.sd_criterion\" = { sd = 0.1, low = -1 }", "goes outside"),
+        (
+            "\"observer.criterion\" = { sd = -0.1 }",
+            "not a finite number ≥ 0",
+        ),
+        (
+            "\"observer.criterion\" = { sd = 0.1, low = 0 }",
+            "does not hold",
+        ),
+        (
+            "\"observer.criterion\" = { sd = 0.1, mean = 0 }",
+            "`mean` is not a key",
+        ),
+        (
+            "\"animals.sd_criterion\" = { sd = 0.1, low = -1 }",
+            "goes outside",
+        ),
     ] {
         let (text, n) = plan(&format!("[assurance]\n[assurance.uncertain]\n{entry}\n"));
         let key = entry.split(" =").next().unwrap().trim_matches('"');
@@ -61,9 +76,13 @@ fn a_distribution_must_give_an_sd_and_a_range_holding_the_plan_value() {
 
 #[test]
 fn draws_target_and_the_uncertain_table_are_checked() {
-    let (text, n) = plan("[assurance]\ndraws = 10\n[assurance.uncertain]\n\"observer.criterion\" = { sd = 0.1 }\n");
+    let (text, n) = plan(
+        "[assurance]\ndraws = 10\n[assurance.uncertain]\n\"observer.criterion\" = { sd = 0.1 }\n",
+    );
     rejected(&text, n + 2, "assurance.draws");
-    let (text, n) = plan("[assurance]\ntarget = 1.5\n[assurance.uncertain]\n\"observer.criterion\" = { sd = 0.1 }\n");
+    let (text, n) = plan(
+        "[assurance]\ntarget = 1.5\n[assurance.uncertain]\n\"observer.criterion\" = { sd = 0.1 }\n",
+    );
     rejected(&text, n + 2, "assurance.target");
     let (text, n) = plan("[assurance]\ndraws = 500\n");
     rejected(&text, n + 1, "assurance");

@@ -436,9 +436,8 @@ fn the_bundled_vole_plan_holds_the_pilot_skeletons_values() {
         &["pilot", csv.to_str().unwrap(), "--plan-out", "plan.toml"],
     );
     assert!(out.status.success(), "{}", stderr(&out));
-    let read = |p: &Path| -> toml::Table {
-        toml::from_str(&std::fs::read_to_string(p).unwrap()).unwrap()
-    };
+    let read =
+        |p: &Path| -> toml::Table { toml::from_str(&std::fs::read_to_string(p).unwrap()).unwrap() };
     let skeleton = read(&dir.path().join("plan.toml"));
     let bundled = read(&common::plans_dir().join("vole-pilot-assurance.toml"));
     let at = |t: &toml::Table, path: &[&str]| -> toml::Value {

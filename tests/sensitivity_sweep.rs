@@ -34,7 +34,10 @@ fn more_between_animal_spread_never_needs_a_cheaper_study() {
         .map(|p| p.answer.as_ref().unwrap().cost.unwrap())
         .collect();
     assert!(costs.windows(2).all(|w| w[0] <= w[1]), "{costs:?}");
-    assert!(costs[0] < costs[costs.len() - 1], "the sweep moved nothing: {costs:?}");
+    assert!(
+        costs[0] < costs[costs.len() - 1],
+        "the sweep moved nothing: {costs:?}"
+    );
     let power: Vec<f64> = s.points.iter().map(|p| p.power_at_plan_answer[0]).collect();
     assert!(power.windows(2).all(|w| w[0] >= w[1]), "{power:?}");
     // The plan's own value reproduces the plan's answer.

@@ -206,9 +206,9 @@ fn sections(out: &mut String, plan: &Plan) {
             .iter()
             .map(super::uncertainty_text::prior_text)
             .collect();
-        let target = a
-            .target
-            .map_or(String::new(), |t| format!("; searching for {:.0}% assurance", 100.0 * t));
+        let target = a.target.map_or(String::new(), |t| {
+            format!("; searching for {:.0}% assurance", 100.0 * t)
+        });
         let _ = writeln!(
             out,
             "assurance: {} drawn sets of {}{target}",

@@ -207,9 +207,15 @@ fn point_at(
 
 /// The assurance of design `d` of `plan` at `chosen` under `spec` (`None` when the plan
 /// plans nothing for the design).
-pub fn assurance_at(plan: &Plan, spec: &AssuranceSpec, d: usize, chosen: Chosen) -> Option<AssuredPoint> {
+pub fn assurance_at(
+    plan: &Plan,
+    spec: &AssuranceSpec,
+    d: usize,
+    chosen: Chosen,
+) -> Option<AssuredPoint> {
     let variants = variants(plan, spec);
-    let all: Vec<Option<Vec<Option<View>>>> = variants.iter().map(|v| v.as_ref().map(views)).collect();
+    let all: Vec<Option<Vec<Option<View>>>> =
+        variants.iter().map(|v| v.as_ref().map(views)).collect();
     let per_draw: Vec<Option<&View>> = all
         .iter()
         .map(|vs| vs.as_ref().and_then(|vs| vs[d].as_ref()))
