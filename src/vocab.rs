@@ -21,6 +21,8 @@ pub enum Quantity {
     DA,
     Az,
     BaseRate,
+    /// Proportion correct of an unbiased two-choice observer, Φ(d′/√2).
+    PercentCorrect,
 }
 
 impl Quantity {
@@ -34,6 +36,7 @@ impl Quantity {
             Self::DA => "d_a",
             Self::Az => "A_z",
             Self::BaseRate => "π",
+            Self::PercentCorrect => "p_c",
         }
     }
 
@@ -64,6 +67,7 @@ impl Quantity {
             Self::DA => "d_a",
             Self::Az => "a_z",
             Self::BaseRate => "base_rate",
+            Self::PercentCorrect => "p_correct",
         }
     }
 }

@@ -162,6 +162,7 @@ plan_snapshots! {
     playback_yes_no: "playback-yes-no", experiments "300";
     predator_model_colony: "predator-model-colony", experiments "300";
     sentinel_error_records: "sentinel-error-records", experiments "300";
+    two_choice_discrimination: "two-choice-discrimination", experiments "300";
     vole_pilot_assurance: "vole-pilot-assurance", experiments "300";
 }
 

@@ -226,7 +226,7 @@ impl DesignInformation {
                 quantity: q.quantity,
                 condition: q.label.clone(),
                 truth: q.truth,
-                se: conditions.and_then(|c| se_of(&c[q.condition], q.quantity)),
+                se: conditions.and_then(|c| se_of(&c[q.condition], q.quantity, q.truth)),
             })
             .collect();
         let verdict = from_assessment(&id.verdict, self.model.parameters(), &self.names);
@@ -330,8 +330,16 @@ fn range_end_value(end: RangeEnd) -> f64 {
     }
 }
 
-fn se_of(p: &ConditionPrecision, quantity: Quantity) -> Option<f64> {
+/// The asymptotic SE of `quantity` (`truth` its hypothesised value, which p_c's delta method
+/// needs).
+fn se_of(p: &ConditionPrecision, quantity: Quantity, truth: f64) -> Option<f64> {
     match quantity {
+        Quantity::PercentCorrect => {
+            // d′ = √2·z(p_c) at the hypothesised value.
+            let d = std::f64::consts::SQRT_2 * crate::model::normal::z(truth)?;
+            p.se_d_prime
+                .map(|se| crate::design::quantities::percent_correct(d, se).1)
+        }
         Quantity::DPrime => p.se_d_prime,
         Quantity::Criterion => p.se_criterion,
         Quantity::Sigma => p.se_sigma,

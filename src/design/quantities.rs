@@ -6,10 +6,23 @@
 //! the record leaves the base rate free (once when shared). A quantity carries the
 //! condition's name as its label only when the design has several conditions and the
 //! parameter is not shared. d′ and c of the first condition always come first, in that
-//! order, because the trade-off figures r(d̂′, ĉ) read those two.
+//! order, because the trade-off figures r(d̂′, ĉ) read those two. A two-choice record also
+//! reports p_c = Φ(d′/√2), the proportion correct of an unbiased observer (Macmillan &
+//! Creelman 2005, ch. 7), after its d′.
 
-use crate::cells::spec::{BaseRateLink, ConditionSpec, Role};
+use crate::cells::spec::{BaseRateLink, ConditionSpec, Record, Role};
+use crate::model::normal;
 use crate::vocab::Quantity;
+
+/// The proportion correct of an unbiased two-choice observer, p_c = Φ(d′/√2), with its
+/// delta-method SE φ(d′/√2)/√2 · SE(d′) (common practice).
+pub fn percent_correct(d_prime: f64, se_d_prime: f64) -> (f64, f64) {
+    let x = d_prime / std::f64::consts::SQRT_2;
+    (
+        normal::cdf(x),
+        normal::pdf(x) / std::f64::consts::SQRT_2 * se_d_prime,
+    )
+}
 
 /// One reported natural quantity of a design.
 #[derive(Debug, Clone, PartialEq)]
@@ -48,6 +61,14 @@ pub fn reported_quantities(specs: &[ConditionSpec]) -> Vec<ReportedQuantity> {
             let shared = role == Role::Shared;
             if role != Role::Fixed && (!shared || j == 0) {
                 add(j, quantity, truth, shared);
+                if quantity == Quantity::DPrime && matches!(spec.record, Record::TwoChoice { .. }) {
+                    add(
+                        j,
+                        Quantity::PercentCorrect,
+                        percent_correct(truth, 0.0).0,
+                        shared,
+                    );
+                }
             }
         }
         if spec

@@ -16,7 +16,7 @@ use crate::cells::information::{Precision, precision};
 use crate::cells::likelihood::Counts;
 use crate::cells::newton::{Fit, NewtonOptions, Start, StopReason, fit};
 use crate::cells::observation_model::ObservationModel;
-use crate::design::quantities::reported_quantities;
+use crate::design::quantities::{percent_correct, reported_quantities};
 use crate::infer::{likelihood_ratio_test, signed_root_test, wald_test};
 use crate::vocab::{Quantity, RateCorrection, Sided};
 
@@ -208,6 +208,13 @@ impl GeneralEstimator {
                 Quantity::Criterion => (v.criterion, p.se_criterion),
                 Quantity::Sigma => (v.sigma, p.se_sigma),
                 Quantity::BaseRate => (v.base_rate, p.se_base_rate),
+                Quantity::PercentCorrect => match p.se_d_prime {
+                    Some(se) => {
+                        let (pc, se) = percent_correct(v.d_prime, se);
+                        (pc, Some(se))
+                    }
+                    None => (f64::NAN, None),
+                },
                 _ => (f64::NAN, None),
             };
             values.push((est, se.unwrap_or(f64::NAN)));

@@ -97,6 +97,23 @@ fn header(out: &mut String, plan: &Plan, summaries: &[ScenarioSummary]) {
             );
         }
     }
+    if plan
+        .designs()
+        .iter()
+        .any(|d| d.record == crate::design::RecordKind::TwoChoice)
+    {
+        // The choice compares two samples: its table has d_a·√2 where yes/no has d′
+        // (d_a = d′·√(2/(1 + σ²)), = d′ at σ = 1; Macmillan & Creelman 2005, ch. 7).
+        let d_a = o.d_prime * (2.0 / (1.0 + o.sigma * o.sigma)).sqrt();
+        let x = d_a / std::f64::consts::SQRT_2;
+        let _ = writeln!(
+            out,
+            "Two-choice designs: P(left | target left) = {}, P(left | target right) = {}; proportion correct without side bias p_c = {}",
+            number(crate::model::normal::cdf(x - o.criterion), 3),
+            number(crate::model::normal::cdf(-x - o.criterion), 3),
+            number(crate::model::normal::cdf(x), 3)
+        );
+    }
     let exact = summaries.iter().any(|s| s.method == Method::Exact);
     let how = if exact {
         "exact enumeration of every outcome (no Monte Carlo error)".to_string()

@@ -28,6 +28,7 @@ from error_total_files import error_total_pmf, error_totals_information
 from rating_files import rating_equal_variance, rating_unequal_variance
 from pilot_files import pilot_moments
 from assurance_files import assurance, assurance_plan
+from two_choice_files import two_choice
 
 REFS = "tabulated"  # a check value fixed in advance and asserted to its stated precision
 # Check values fixed in advance that this script reproduces (see each function).
@@ -327,6 +328,7 @@ def main():
     pilot_moments()
     assurance()
     assurance_plan()
+    two_choice()
     if PRINTED_CHECKS["count"] != EXPECTED_PRINTED_CHECKS:
         raise AssertionError(f"checked {PRINTED_CHECKS['count']} tabulated values, "
                              f"expected {EXPECTED_PRINTED_CHECKS}")
