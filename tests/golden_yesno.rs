@@ -126,7 +126,7 @@ fn exact_enumeration_matches_scipy() {
         let (ns, nn) = (u(&case, "n_present"), u(&case, "n_absent"));
         let kernel =
             ScenarioKernel::yes_no(&observer, ns, nn, rule(&case), z_critical(0.95)).unwrap();
-        let tally = exact::enumerate(&kernel).unwrap();
+        let tally = exact::enumerate(&kernel).unwrap().tally;
         let scenario = Scenario {
             id: 0,
             design: 0,

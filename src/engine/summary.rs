@@ -95,6 +95,10 @@ pub struct ScenarioSummary {
     /// experiments run are `datasets.total`); `None` for a fixed count.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub precision_met: Option<bool>,
+    /// Exact rows: at most this much probability lies in the outcomes the enumeration left
+    /// out (`analytic::exact`); `None` for simulated rows.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub neglected_mass: Option<f64>,
 }
 
 impl QuantitySummary {
@@ -159,6 +163,7 @@ pub fn summarise(
             .collect(),
         identification: None,
         precision_met: None,
+        neglected_mass: None,
     }
 }
 

@@ -82,13 +82,14 @@ pub fn preflight(plan: &Plan, options: RunOptions) -> Result<(), RunError> {
                 design: design.name.clone(),
             });
         }
-        // A single table: one condition, whose split is the whole scenario's.
-        let c = &s.conditions[0];
-        if !exact::can_enumerate(c.present, c.absent) {
+        // The limit applies to the outcomes the truncation keeps.
+        let kernel = scenario_kernel(plan, &s)?;
+        let (kept, _) = exact::kept_outcomes(&kernel, exact::RELATIVE_CUTOFF).unwrap_or((0, 0));
+        if kept > exact::MAX_OUTCOMES {
             return Err(RunError::TooLargeToEnumerate {
                 design: design.name.clone(),
                 trials: s.trials,
-                outcomes: (u64::from(c.present) + 1) * (u64::from(c.absent) + 1),
+                outcomes: kept,
                 max: exact::MAX_OUTCOMES,
             });
         }
@@ -216,14 +217,11 @@ pub fn simulate_scenario(
     let study = plan.study();
     let kernel = scenario_kernel(plan, scenario)?;
     if options.exact
-        && let Some(tally) = exact::enumerate(&kernel)
+        && let Some(e) = exact::enumerate(&kernel)
     {
-        return Ok(summary::summarise(
-            scenario.clone(),
-            &design.name,
-            &tally,
-            Method::Exact,
-        ));
+        let mut s = summary::summarise(scenario.clone(), &design.name, &e.tally, Method::Exact);
+        s.neglected_mass = Some(e.neglected_bound);
+        return Ok(s);
     }
     let Some(target) = study.precision else {
         let tally = run_replicates(

@@ -116,7 +116,13 @@ fn header(out: &mut String, plan: &Plan, summaries: &[ScenarioSummary]) {
     }
     let exact = summaries.iter().any(|s| s.method == Method::Exact);
     let how = if exact {
-        "exact enumeration of every outcome (no Monte Carlo error)".to_string()
+        let bound = summaries
+            .iter()
+            .filter_map(|s| s.neglected_mass)
+            .fold(0.0, f64::max);
+        format!(
+            "exact enumeration of the outcomes (those left out, each under 1e-18 of the most probable, hold at most {bound:.0e} of the probability in any row; no Monte Carlo error)"
+        )
     } else {
         format!(
             "{} per row, seed {}",
@@ -131,7 +137,7 @@ fn header(out: &mut String, plan: &Plan, summaries: &[ScenarioSummary]) {
         plan.study().rate_correction.name()
     );
     let figures = if exact {
-        "Figures are exact expectations over every possible dataset, each weighted by its probability, so they carry no ±; shares are exact probabilities."
+        "Figures are exact expectations over the possible datasets (all but the negligible ones above), each weighted by its probability, so they carry no ±; shares are exact probabilities."
     } else {
         "Figures are means over datasets ± their Monte Carlo SE; shares carry a 95% Wilson interval."
     };

@@ -3,9 +3,10 @@
 //! drawn set of values (the nested check of the expected-information assurance).
 
 use super::answer::Chosen;
-use crate::engine::Share;
 use crate::engine::parallel::run_chunk;
+use crate::engine::{ScenarioSummary, Share};
 use crate::evaluate::{RunOptions, run_scenario};
+use crate::groups::GroupSummary;
 use crate::groups::grid::{point_kernel, run_point, stream_key, summarise_point};
 use crate::groups::setups;
 use crate::groups::summary::share;
@@ -32,6 +33,41 @@ fn scenario(plan: &Plan, d: usize, trials: u32, id: u64) -> Scenario {
     }
 }
 
+/// A test with no row in a summary: nothing rejected.
+const MISSING: Share = Share {
+    value: 0.0,
+    low: 0.0,
+    high: 0.0,
+};
+
+/// Two-stage rejection shares of the named group tests.
+fn group_shares(summary: &GroupSummary, tests: &[String]) -> Vec<Share> {
+    tests
+        .iter()
+        .map(|t| {
+            summary
+                .tests
+                .iter()
+                .find(|x| &x.name == t)
+                .map_or(MISSING, |x| x.two_stage)
+        })
+        .collect()
+}
+
+/// Likelihood-ratio rejection shares of the named hypotheses.
+fn scenario_shares(summary: &ScenarioSummary, tests: &[String]) -> Vec<Share> {
+    tests
+        .iter()
+        .map(|t| {
+            summary
+                .tests
+                .iter()
+                .find(|x| &x.hypothesis == t)
+                .map_or(MISSING, |x| x.likelihood_ratio)
+        })
+        .collect()
+}
+
 /// Simulated power of each named test of design `d` at `chosen`, with the plan's
 /// experiments: two-stage for groups, likelihood-ratio for one animal.
 pub fn simulated_power(
@@ -41,17 +77,11 @@ pub fn simulated_power(
     tests: &[String],
     progress: &Progress<'_>,
 ) -> Result<Vec<Share>, String> {
-    let missing = Share {
-        value: 0.0,
-        low: 0.0,
-        high: 0.0,
-    };
     match chosen.animals {
         Some(animals) => {
             let all = setups(plan).map_err(|e| e.to_string())?;
-            let setup = &all[d];
             let summary = run_point(
-                setup,
+                &all[d],
                 animals,
                 chosen.trials,
                 plan.study().experiments,
@@ -59,31 +89,13 @@ pub fn simulated_power(
                 progress,
             )
             .map_err(|e| e.to_string())?;
-            Ok(tests
-                .iter()
-                .map(|t| {
-                    summary
-                        .tests
-                        .iter()
-                        .find(|x| &x.name == t)
-                        .map_or(missing, |x| x.two_stage)
-                })
-                .collect())
+            Ok(group_shares(&summary, tests))
         }
         None => {
             let s = scenario(plan, d, chosen.trials, CORNER_STREAM_BASE + d as u64);
             let summary = run_scenario(plan, &s, RunOptions::default(), progress)
                 .map_err(|e| e.to_string())?;
-            Ok(tests
-                .iter()
-                .map(|t| {
-                    summary
-                        .tests
-                        .iter()
-                        .find(|x| &x.hypothesis == t)
-                        .map_or(missing, |x| x.likelihood_ratio)
-                })
-                .collect())
+            Ok(scenario_shares(&summary, tests))
         }
     }
 }
@@ -114,44 +126,23 @@ pub fn nested_assurance(
 
 /// Whether one simulated study of `plan` rejects each named test.
 fn one_study(plan: &Plan, d: usize, chosen: Chosen, tests: &[String], i: u64) -> Option<Vec<bool>> {
-    match chosen.animals {
+    let shares = match chosen.animals {
         Some(animals) => {
             let all = setups(plan).ok()?;
             let setup = &all[d];
             let kernel = point_kernel(setup, animals, chosen.trials).ok()?;
             let key = stream_key(d) | NESTED_GROUP_BIT | i;
             let tally = run_chunk(&*kernel, plan.study().seed, key, 1, 0);
-            let summary = summarise_point(setup, &tally);
-            Some(
-                tests
-                    .iter()
-                    .map(|t| {
-                        summary
-                            .tests
-                            .iter()
-                            .find(|x| &x.name == t)
-                            .is_some_and(|x| x.two_stage.value > 0.5)
-                    })
-                    .collect(),
-            )
+            group_shares(&summarise_point(setup, &tally), tests)
         }
         None => {
             let one = plan.with_experiments(1).ok()?;
             let id = NESTED_STREAM_BASE + ((d as u64) << 24) + i;
             let s = scenario(&one, d, chosen.trials, id);
             let summary = run_scenario(&one, &s, RunOptions::default(), &quiet).ok()?;
-            Some(
-                tests
-                    .iter()
-                    .map(|t| {
-                        summary
-                            .tests
-                            .iter()
-                            .find(|x| &x.hypothesis == t)
-                            .is_some_and(|x| x.likelihood_ratio.value > 0.5)
-                    })
-                    .collect(),
-            )
+            scenario_shares(&summary, tests)
         }
-    }
+    };
+    // One study: each share is 0 or 1.
+    Some(shares.iter().map(|s| s.value > 0.5).collect())
 }
