@@ -15,6 +15,7 @@
 //! mass, so they move by less than that). The limit on enumerated outcomes applies to the
 //! kept ones.
 
+use super::exact_sums::RowSums;
 use crate::engine::parallel::Kernel;
 use crate::engine::scenario_kernel::{Estimator, ScenarioKernel};
 use crate::engine::tally::EstimateTally;
@@ -97,20 +98,32 @@ pub fn enumerate_with(kernel: &ScenarioKernel, relative: f64) -> Option<Enumerat
     let rows: Vec<usize> = at_least(ph, cutoff / peak(pf).max(f64::MIN_POSITIVE)).collect();
     // Blocks of rows are tallied in parallel and merged in block order: the sums (and so the
     // bits) do not depend on the thread count.
+    let template = kernel.tally();
+    let (truth, z) = estimator.truth();
     let blocks: Vec<(EstimateTally, u64)> = rows
         .par_chunks(ROWS_PER_BLOCK)
         .map(|block| {
             let mut tally = kernel.tally();
             let mut kept = 0u64;
             for &h in block {
+                // One row: plain sums (exact_sums), merged into the block once.
+                let mut row = RowSums::default();
                 let wh = ph[h];
                 for f in f_range.clone() {
                     let w = wh * pf[f];
                     if w > 0.0 && w >= cutoff {
-                        estimator.record(h as u32, f as u32, w, &mut tally);
+                        let (h, f) = (h as u32, f as u32);
+                        if estimator.extreme(h, f) {
+                            row.push_extreme(w);
+                        }
+                        match estimator.fit(h, f) {
+                            Some(values) => row.push_fit(&values, &truth, z, w),
+                            None => row.push_unfitted(w),
+                        }
                         kept += 1;
                     }
                 }
+                kernel.merge(&mut tally, row.into_tally(&template));
             }
             (tally, kept)
         })

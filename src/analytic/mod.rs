@@ -3,6 +3,7 @@
 
 pub mod advice;
 pub mod exact;
+pub mod exact_sums;
 pub mod information;
 pub mod scale_fit;
 pub mod scan;

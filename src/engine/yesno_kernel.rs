@@ -42,20 +42,34 @@ impl YesNoEstimator {
         ])
     }
 
+    /// Whether the dataset (h hits, f false alarms) has a rate of 0 or 1.
+    #[inline]
+    pub fn extreme(&self, h: u32, f: u32) -> bool {
+        self.z_hits.is_extreme(h) || self.z_false_alarms.is_extreme(f)
+    }
+
+    /// (d̂′, SE) and (ĉ, SE) of the dataset, or `None` when the rule leaves it unfitted.
+    #[inline]
+    pub fn fit(&self, h: u32, f: u32) -> Option<[(f64, f64); 2]> {
+        let fit = YesNoFit::from_entries(self.z_hits.get(h)?, self.z_false_alarms.get(f)?);
+        Some([
+            (fit.measures.d_prime, fit.se_d_prime),
+            (fit.measures.criterion, fit.se_criterion),
+        ])
+    }
+
+    /// (d′, c) of the observer, and the critical value of the Wald interval.
+    pub fn truth(&self) -> ([f64; 2], f64) {
+        (self.truth, self.z_crit)
+    }
+
     /// Records the dataset (h hits, f false alarms) with weight `w`.
     #[inline]
     pub fn record(&self, h: u32, f: u32, w: f64, tally: &mut EstimateTally) {
-        let extreme = self.z_hits.is_extreme(h) || self.z_false_alarms.is_extreme(f);
-        match (self.z_hits.get(h), self.z_false_alarms.get(f)) {
-            (Some(zh), Some(zf)) => {
-                let fit = YesNoFit::from_entries(zh, zf);
-                let values = [
-                    (fit.measures.d_prime, fit.se_d_prime),
-                    (fit.measures.criterion, fit.se_criterion),
-                ];
-                tally.push_fit(&values, extreme, w);
-            }
-            _ => tally.push_unfitted(DatasetOutcome::Degenerate, extreme, w),
+        let extreme = self.extreme(h, f);
+        match self.fit(h, f) {
+            Some(values) => tally.push_fit(&values, extreme, w),
+            None => tally.push_unfitted(DatasetOutcome::Degenerate, extreme, w),
         }
     }
 }

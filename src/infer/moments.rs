@@ -47,6 +47,18 @@ impl Moments {
         self.count
     }
 
+    /// The accumulator of `count` values of total weight `weight`, mean `mean` and central
+    /// sum of squares `m2` (for callers that sum a batch themselves, as exact enumeration
+    /// does one row at a time).
+    pub fn from_central(weight: f64, count: u64, mean: f64, m2: f64) -> Self {
+        Self {
+            weight,
+            count,
+            mean,
+            m2,
+        }
+    }
+
     /// Sum of weights.
     pub fn weight(&self) -> f64 {
         self.weight
@@ -102,6 +114,11 @@ pub struct FourthMoments {
 }
 
 impl FourthMoments {
+    /// The accumulator of `base` with third and fourth central sums `m3`, `m4`.
+    pub fn from_central(base: Moments, m3: f64, m4: f64) -> Self {
+        Self { base, m3, m4 }
+    }
+
     /// Adds one value with weight `w > 0`: a merge with a one-point set (M2 = M3 = M4 = 0).
     #[inline]
     pub fn push(&mut self, x: f64, w: f64) {
@@ -215,6 +232,11 @@ pub struct CoMoments {
 }
 
 impl CoMoments {
+    /// The accumulator of the two variables' moments and their central co-sum `c`.
+    pub fn from_central(x: Moments, y: Moments, c: f64) -> Self {
+        Self { x, y, c }
+    }
+
     #[inline]
     pub fn push(&mut self, x: f64, y: f64, w: f64) {
         let dx = x - self.x.mean;
