@@ -140,3 +140,41 @@ trials = [2000]
         }
     }
 }
+
+#[test]
+fn groups_of_two_choice_animals_hold_alpha_on_a_null_side_bias() {
+    // No side bias on average (c = 0), animals differ (SD of c 0.3): the two-stage t test
+    // across animals is exact for normal per-animal estimates (Student 1908), so its
+    // rejection rate must be α within Monte Carlo error (3 binomial SEs of 1000 studies).
+    let text = r#"[study]
+title = "2afc groups null"
+seed = 23
+experiments = 1000
+[observer]
+d_prime = 1.0
+criterion = 0.0
+[[design]]
+name = "two-choice"
+record = "two-choice"
+presence = 0.5
+trials = [40]
+[animals]
+counts = [12]
+sd_d_prime = 0.2
+sd_criterion = 0.3
+[[hypothesis]]
+name = "side bias"
+kind = "bias"
+"#;
+    let plan = Plan::from_str(Path::new("null.toml"), text).unwrap();
+    let report = vigil::groups::run_groups(&plan, &|_| {}).unwrap();
+    let cell = &report.designs[0].cells[0];
+    let t = &cell.summary.tests[0];
+    assert!(t.effect.abs() < 1e-12);
+    let se = (0.05f64 * 0.95 / 1000.0).sqrt();
+    assert!(
+        (t.two_stage.value - 0.05).abs() < 3.0 * se,
+        "two-stage rejection rate {} at a true null",
+        t.two_stage.value
+    );
+}
