@@ -145,12 +145,17 @@ fn checkpoints_are_not_reused_by_mistake() {
     let text = std::fs::read_to_string(dir.join(PLAN)).unwrap();
     // A checkpoint of this plan, stopped early.
     let mut child = start(dir, &["--checkpoint", "ck.json"]);
-    std::thread::sleep(Duration::from_millis(1200));
+    // Wait for the first save (polled, so a loaded machine only makes the wait longer), then
+    // stop the run.
+    let saved = (0..400).any(|_| {
+        std::thread::sleep(Duration::from_millis(50));
+        dir.join("ck.json").exists()
+    });
     child.kill().unwrap();
     child.wait().unwrap();
     assert!(
-        dir.join("ck.json").exists(),
-        "no checkpoint saved after 1.2 s"
+        saved && dir.join("ck.json").exists(),
+        "no checkpoint saved after 20 s"
     );
 
     // Without --resume an existing checkpoint is refused, not overwritten.

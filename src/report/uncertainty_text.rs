@@ -21,6 +21,23 @@ pub fn chosen_text(c: &Chosen) -> String {
     }
 }
 
+/// A design for a table cell: "14 × 40" (animals × trials) or "40" (trials).
+pub fn chosen_cell(c: &Chosen) -> String {
+    match c.animals {
+        Some(a) => format!("{a} × {}", c.trials),
+        None => c.trials.to_string(),
+    }
+}
+
+/// The header of a design column.
+fn design_header(c: &Chosen) -> &'static str {
+    if c.animals.is_some() {
+        "animals × trials"
+    } else {
+        "trials"
+    }
+}
+
 /// An answer in words, with its cost when it has one.
 pub fn answer_text(a: &Answer) -> String {
     match a.cost {
@@ -91,21 +108,29 @@ fn spread_text(s: &AssumptionSweep) -> String {
     if s.spread.is_infinite() {
         "(out of reach at some value)".into()
     } else {
-        format!("(±{:.0}% of the plan's answer)", 50.0 * s.spread)
+        format!(
+            "(its values span {:.0}% of the plan's answer)",
+            100.0 * s.spread
+        )
     }
 }
 
 /// The sweep table of a design: header and rows (one per assumption × value).
 pub fn sweep_table(d: &DesignSensitivity, plan_answer: &Answer) -> (Vec<String>, Vec<Vec<String>>) {
-    let mut header = vec!["assumption".to_string(), "value".into(), "answer".into()];
+    let mut header = vec![
+        "assumption".to_string(),
+        "value".into(),
+        design_header(&plan_answer.chosen).into(),
+    ];
     if plan_answer.cost.is_some() {
         header.push("cost".into());
     }
     for (name, _) in &d.tests {
-        header.push(format!(
-            "≈ power \"{name}\" at {}",
-            chosen_text(&plan_answer.chosen)
-        ));
+        header.push(if d.tests.len() == 1 {
+            "≈ power at plan's answer".to_string()
+        } else {
+            format!("≈ power \"{name}\" at plan's answer")
+        });
     }
     let mut rows = Vec::new();
     for s in &d.sweeps {
@@ -123,7 +148,7 @@ pub fn sweep_table(d: &DesignSensitivity, plan_answer: &Answer) -> (Vec<String>,
                 },
                 p.answer
                     .as_ref()
-                    .map_or_else(|| "out of reach".into(), |a| chosen_text(&a.chosen)),
+                    .map_or_else(|| "out of reach".into(), |a| chosen_cell(&a.chosen)),
             ];
             if plan_answer.cost.is_some() {
                 row.push(
@@ -148,7 +173,11 @@ pub fn sweep_table(d: &DesignSensitivity, plan_answer: &Answer) -> (Vec<String>,
 
 /// The corner table of a design (empty rows when no corner was simulated).
 pub fn corner_table(d: &DesignSensitivity) -> (Vec<String>, Vec<Vec<String>>) {
-    let mut header = vec!["assumption".to_string(), "value".into(), "design".into()];
+    let design = d
+        .plan_answer
+        .as_ref()
+        .map_or("design", |a| design_header(&a.chosen));
+    let mut header = vec!["assumption".to_string(), "value".into(), design.into()];
     for (name, target) in &d.tests {
         header.push(match target {
             Some(t) => format!("power \"{name}\" (target {})", plain(*t)),
@@ -161,7 +190,7 @@ pub fn corner_table(d: &DesignSensitivity) -> (Vec<String>, Vec<Vec<String>>) {
         .iter()
         .flat_map(|s| s.corners.iter().map(move |c| (s, c)))
         .map(|(s, c)| {
-            let mut row = vec![s.label.clone(), plain(c.value), chosen_text(&c.chosen)];
+            let mut row = vec![s.label.clone(), plain(c.value), chosen_cell(&c.chosen)];
             row.extend(c.power.iter().map(power));
             row.push(match c.meets_targets {
                 Some(true) => "yes".into(),
@@ -245,22 +274,27 @@ pub fn prior_text(u: &Uncertain) -> String {
     s
 }
 
-fn point_rows(label: String, p: &AssuredPoint) -> Vec<Vec<String>> {
+fn point_rows(label: String, p: &AssuredPoint, with_test: bool) -> Vec<Vec<String>> {
     p.tests
         .iter()
         .zip(&p.simulated)
         .enumerate()
         .map(|(i, (t, sim))| {
             let first = |x: String| if i == 0 { x } else { String::new() };
-            vec![
+            let mut row = vec![
                 first(label.clone()),
-                first(chosen_text(&p.chosen)),
+                first(chosen_cell(&p.chosen)),
                 first(p.cost.map_or_else(|| "–".into(), whole)),
-                format!("\"{}\"", t.name),
+            ];
+            if with_test {
+                row.push(format!("\"{}\"", t.name));
+            }
+            row.extend([
                 format!("{:.2}", t.assurance.point_power),
                 format!("{:.3} ± {:.3}", t.assurance.value, t.assurance.mc_se),
                 power(sim),
-            ]
+            ]);
+            row
         })
         .collect()
 }
@@ -270,23 +304,28 @@ pub fn assurance_table(
     target: Option<f64>,
     d: &DesignAssurance,
 ) -> (Vec<String>, Vec<Vec<String>>) {
-    let header = [
-        "",
-        "design",
-        "cost",
-        "test",
-        "≈ power at plan's values",
-        "≈ assurance ± MC SE",
-        "simulated assurance",
-    ]
-    .map(String::from)
-    .to_vec();
+    let first = d.at_plan_answer.as_ref().or(d.assured.as_ref());
+    // One test: its name goes in the sentence below, not in a column.
+    let with_test = first.is_some_and(|p| p.tests.len() > 1);
+    let mut header = vec![
+        String::new(),
+        first.map_or("design", |p| design_header(&p.chosen)).into(),
+        "cost".into(),
+    ];
+    if with_test {
+        header.push("test".into());
+    }
+    header.extend(["≈ power", "≈ assurance ± MC SE", "simulated"].map(String::from));
     let mut rows = Vec::new();
     if let Some(p) = &d.at_plan_answer {
-        rows.extend(point_rows("plan's answer".into(), p));
+        rows.extend(point_rows("plan's answer".into(), p, with_test));
     }
     if let (Some(p), Some(target)) = (&d.assured, target) {
-        rows.extend(point_rows(format!("assured ({:.0}%)", 100.0 * target), p));
+        rows.extend(point_rows(
+            format!("assured ({:.0}%)", 100.0 * target),
+            p,
+            with_test,
+        ));
     }
     (header, rows)
 }
@@ -322,7 +361,7 @@ pub fn assured_sentence(target: f64, d: &DesignAssurance) -> Option<String> {
 
 fn assurance_intro(r: &AssuranceReport) -> String {
     format!(
-        "Assurance: the expected power when the assumptions below are uncertain, over {} drawn sets of values (O'Hagan, Stevens & Campbell 2005). Each set's power is the expected-information approximation; the simulated column runs one study per drawn set ({} studies).",
+        "Assurance: the expected power when the assumptions below are uncertain, over {} drawn sets of values (O'Hagan, Stevens & Campbell 2005). \"≈ power\" is the power at the plan's values and \"≈ assurance\" its mean over the drawn sets, both by the expected-information approximation; \"simulated\" runs one study per drawn set ({} studies).",
         r.draws,
         r.designs
             .iter()
@@ -365,7 +404,8 @@ fn assurance_block(out: &mut String, r: &AssuranceReport) {
     for d in &r.designs {
         let _ = writeln!(out, "\"{}\" ({}):", d.design, criterion_text(d.criterion));
         let (header, rows) = assurance_table(r.target, d);
-        let _ = writeln!(out, "{}", text_table(&header, rows, &[(2, 3), (4, 7)]));
+        let n = header.len();
+        let _ = writeln!(out, "{}", text_table(&header, rows, &[(2, 3), (n - 3, n)]));
         if let Some(line) = outcome_line(r, d) {
             let _ = writeln!(out, "{line}");
         }
