@@ -331,11 +331,14 @@ pub fn assurance_table(
 }
 
 /// The sentence a proposal can quote: "With 90% assurance: 22 animals × 40 trials …".
-pub fn assured_sentence(target: f64, d: &DesignAssurance) -> Option<String> {
+pub fn assured_sentence(target: f64, d: &DesignAssurance, budget: Option<f64>) -> Option<String> {
     let p = d.assured.as_ref()?;
-    let cost = p
-        .cost
-        .map_or(String::new(), |c| format!(" (cost {})", whole(c)));
+    let cost = p.cost.map_or(String::new(), |c| match budget {
+        Some(total) if c > total => {
+            format!(" (cost {}, above the budget of {})", whole(c), whole(total))
+        }
+        _ => format!(" (cost {})", whole(c)),
+    });
     let tests: Vec<String> = p
         .tests
         .iter()
@@ -386,7 +389,8 @@ fn failed_note(r: &AssuranceReport) -> Option<String> {
 /// The assured sentence, or why there is none.
 fn outcome_line(r: &AssuranceReport, d: &DesignAssurance) -> Option<String> {
     let target = r.target?;
-    assured_sentence(target, d).or_else(|| d.note.as_ref().map(|n| format!("Note: {n}.")))
+    assured_sentence(target, d, r.budget_total)
+        .or_else(|| d.note.as_ref().map(|n| format!("Note: {n}.")))
 }
 
 /// Assurance rests on its distributions: said under every assurance.
@@ -420,7 +424,10 @@ pub fn justification(u: &UncertaintyReport) -> Vec<String> {
     if let Some(r) = &u.assurance {
         let priors: Vec<String> = r.uncertain.iter().map(prior_text).collect();
         for d in &r.designs {
-            let what = match (r.target, assured_sentence(r.target.unwrap_or(0.0), d)) {
+            let what = match (
+                r.target,
+                assured_sentence(r.target.unwrap_or(0.0), d, r.budget_total),
+            ) {
                 (Some(_), Some(s)) => s,
                 _ => match &d.at_plan_answer {
                     Some(p) => format!(

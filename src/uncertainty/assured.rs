@@ -81,6 +81,8 @@ pub struct AssuranceReport {
     pub uncertain: Vec<Uncertain>,
     /// Drawn sets the plan format refused (left out of every assurance).
     pub failed_draws: usize,
+    /// The plan's `[budget]` total, which an assured design may exceed (the report says so).
+    pub budget_total: Option<f64>,
     pub designs: Vec<DesignAssurance>,
 }
 
@@ -161,6 +163,7 @@ pub fn assurance(
         target: spec.target,
         uncertain: spec.uncertain.clone(),
         failed_draws,
+        budget_total: plan.budget().and_then(|b| b.total),
         designs,
     })
 }
