@@ -87,3 +87,29 @@ fn draws_target_and_the_uncertain_table_are_checked() {
     let (text, n) = plan("[assurance]\ndraws = 500\n");
     rejected(&text, n + 1, "assurance");
 }
+
+#[test]
+fn a_range_needs_two_ends_and_a_step_count() {
+    for (entry, problem) in [
+        (
+            "\"observer.d_prime\" = { from = 1.0, steps = 3 }",
+            "no number `to`",
+        ),
+        (
+            "\"observer.d_prime\" = { from = 1.0, to = 1.5, steps = 1 }",
+            "`steps` must be",
+        ),
+        (
+            "\"observer.d_prime\" = { from = 1.0, to = 1.0, steps = 3 }",
+            "two different",
+        ),
+        (
+            "\"observer.d_prime\" = { from = 1.0, to = 2.0, by = 3 }",
+            "`by` is not a key",
+        ),
+    ] {
+        let (text, n) = plan(&format!("[sensitivity]\n{entry}\n"));
+        let msg = rejected(&text, n + 2, "sensitivity.observer.d_prime");
+        assert!(msg.contains(problem), "{entry}: {msg}");
+    }
+}

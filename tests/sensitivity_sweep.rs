@@ -91,3 +91,13 @@ fn a_one_animal_plan_sweeps_the_smallest_trial_count() {
         }
     }
 }
+
+#[test]
+fn a_range_lists_evenly_spaced_values() {
+    let plan = colony_with("\"animals.sd_criterion\" = { from = 0.1, to = 0.5, steps = 5 }\n");
+    let s = &plan.sensitivity().unwrap().sweeps[0];
+    assert_eq!(s.values, [0.1, 0.2, 0.3, 0.4, 0.5]);
+    // The dotted spelling is the same entry.
+    let dotted = colony_with("animals.sd_criterion = { from = 0.1, to = 0.5, steps = 5 }\n");
+    assert_eq!(dotted.sensitivity(), plan.sensitivity());
+}

@@ -111,7 +111,7 @@ pub fn allowed(key: &str) -> &'static str {
     match key {
         "study" => "a [study] table with title and seed",
         "sensitivity" => {
-            "a [sensitivity] table of assumption = [values], e.g. \"observer.d_prime\" = [0.8, 1.0, 1.2] (docs/plan-format.md)"
+            "a [sensitivity] table of assumption = [values] or { from, to, steps }, e.g. \"observer.d_prime\" = [0.8, 1.0, 1.2] (docs/plan-format.md)"
         }
         "assurance" => {
             "an [assurance] table with draws and target, and [assurance.uncertain] entries such as \"observer.d_prime\" = { sd = 0.15 }"

@@ -112,6 +112,40 @@ fn plan_value(
     })
 }
 
+/// The values of `{ from = A, to = B, steps = N }`: N evenly spaced from A to B, rounded to
+/// 10 decimals so they print as typed (0.3, not 0.30000000000000004).
+fn range_values(t: &toml::Table) -> Result<Vec<f64>, String> {
+    if let Some(other) = t
+        .keys()
+        .find(|k| !["from", "to", "steps"].contains(&k.as_str()))
+    {
+        return Err(format!("`{other}` is not a key of a range"));
+    }
+    let get = |k: &str| {
+        t.get(k)
+            .and_then(number)
+            .ok_or_else(|| format!("the range has no number `{k}`"))
+    };
+    let (from, to) = (get("from")?, get("to")?);
+    let steps = match t.get("steps") {
+        Some(toml::Value::Integer(n)) if (2..=MAX_VALUES as i64).contains(n) => *n as usize,
+        _ => {
+            return Err(format!(
+                "`steps` must be a whole number from 2 to {MAX_VALUES}"
+            ));
+        }
+    };
+    if !(from.is_finite() && to.is_finite()) || from == to {
+        return Err("the range needs two different finite ends".into());
+    }
+    Ok((0..steps)
+        .map(|i| {
+            let x = from + (to - from) * i as f64 / (steps - 1) as f64;
+            (x * 1e10).round() / 1e10
+        })
+        .collect())
+}
+
 /// `[sensitivity]`.
 pub(super) fn sensitivity(
     ctx: &Ctx,
@@ -123,9 +157,18 @@ pub(super) fn sensitivity(
     };
     let span = section.span();
     let mut entries = Vec::new();
-    flatten("", section.get_ref(), &|v| !v.is_table(), &mut entries);
+    let is_range = |v: &toml::Value| {
+        v.as_table()
+            .is_some_and(|t| ["from", "to", "steps"].iter().any(|k| t.contains_key(*k)))
+    };
+    flatten(
+        "",
+        section.get_ref(),
+        &|v| !v.is_table() || is_range(v),
+        &mut entries,
+    );
     let allowed_values = format!(
-        "a list of 2 to {MAX_VALUES} different numbers, e.g. \"observer.d_prime\" = [0.8, 1.0, 1.2]"
+        "a list of 2 to {MAX_VALUES} different numbers, e.g. \"observer.d_prime\" = [0.8, 1.0, 1.2], or an evenly spaced range {{ from = A, to = B, steps = N }} with N from 2 to {MAX_VALUES}"
     );
     if entries.is_empty() || entries.len() > MAX_ASSUMPTIONS {
         return Err(entry_error(
@@ -141,14 +184,16 @@ pub(super) fn sensitivity(
         let full = format!("sensitivity.{name}");
         let key = parse_key(ctx, &span, "sensitivity", &name)?;
         let bad = |problem: String| entry_error(ctx, &span, &full, problem, allowed_values.clone());
-        let list = value
-            .as_array()
-            .ok_or_else(|| bad("not a list of numbers".into()))?;
-        let mut values = list
-            .iter()
-            .map(number)
-            .collect::<Option<Vec<f64>>>()
-            .ok_or_else(|| bad("a value is not a number".into()))?;
+        let mut values = match &value {
+            toml::Value::Table(t) => range_values(t).map_err(&bad)?,
+            _ => value
+                .as_array()
+                .ok_or_else(|| bad("not a list of numbers".into()))?
+                .iter()
+                .map(number)
+                .collect::<Option<Vec<f64>>>()
+                .ok_or_else(|| bad("a value is not a number".into()))?,
+        };
         if !(2..=MAX_VALUES).contains(&values.len()) {
             return Err(bad(format!("{} values given", values.len())));
         }
