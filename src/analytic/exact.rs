@@ -66,18 +66,45 @@ fn at_least(pmf: &[f64], floor: f64) -> std::ops::Range<usize> {
     lo..hi.max(lo)
 }
 
+/// What a truncation at `relative` keeps: the probability cutoff, and the hit and
+/// false-alarm counts that can hold an outcome above it (each is at or above
+/// cutoff / the other margin's peak).
+struct Support {
+    cutoff: f64,
+    hits: std::ops::Range<usize>,
+    false_alarms: std::ops::Range<usize>,
+}
+
+impl Support {
+    fn of(ph: &[f64], pf: &[f64], relative: f64) -> Self {
+        let cutoff = relative * peak(ph) * peak(pf);
+        Self {
+            cutoff,
+            hits: at_least(ph, cutoff / peak(pf).max(f64::MIN_POSITIVE)),
+            false_alarms: at_least(pf, cutoff / peak(ph).max(f64::MIN_POSITIVE)),
+        }
+    }
+
+    /// Whether an outcome of probability `w` is summed.
+    #[inline]
+    fn keeps(&self, w: f64) -> bool {
+        w > 0.0 && w >= self.cutoff
+    }
+}
+
 /// The outcomes kept at `relative` (and all outcomes) for a kernel that can be enumerated.
 pub fn kept_outcomes(kernel: &ScenarioKernel, relative: f64) -> Option<(u64, u64)> {
     let (ph, pf) = margins(kernel)?;
-    let cutoff = relative * peak(ph) * peak(pf);
-    let f_range = at_least(pf, cutoff / peak(ph).max(f64::MIN_POSITIVE));
-    let mut kept = 0u64;
-    for &wh in &ph[at_least(ph, cutoff / peak(pf).max(f64::MIN_POSITIVE))] {
-        kept += pf[f_range.clone()]
-            .iter()
-            .filter(|&&wf| wh * wf >= cutoff && wh * wf > 0.0)
-            .count() as u64;
-    }
+    let s = Support::of(ph, pf, relative);
+    let kept = ph[s.hits.clone()]
+        .iter()
+        .map(|&wh| {
+            pf[s.false_alarms.clone()]
+                .iter()
+                .filter(|&&wf| s.keeps(wh * wf))
+                .count() as u64
+        })
+        .sum();
     Some((kept, (ph.len() * pf.len()) as u64))
 }
 
@@ -93,9 +120,8 @@ pub fn enumerate_with(kernel: &ScenarioKernel, relative: f64) -> Option<Enumerat
         return None;
     };
     let (ph, pf) = margins(kernel)?;
-    let cutoff = relative * peak(ph) * peak(pf);
-    let f_range = at_least(pf, cutoff / peak(ph).max(f64::MIN_POSITIVE));
-    let rows: Vec<usize> = at_least(ph, cutoff / peak(pf).max(f64::MIN_POSITIVE)).collect();
+    let support = Support::of(ph, pf, relative);
+    let rows: Vec<usize> = support.hits.clone().collect();
     // Blocks of rows are tallied in parallel and merged in block order: the sums (and so the
     // bits) do not depend on the thread count.
     let template = kernel.tally();
@@ -109,9 +135,9 @@ pub fn enumerate_with(kernel: &ScenarioKernel, relative: f64) -> Option<Enumerat
                 // One row: plain sums (exact_sums), merged into the block once.
                 let mut row = RowSums::default();
                 let wh = ph[h];
-                for f in f_range.clone() {
+                for f in support.false_alarms.clone() {
                     let w = wh * pf[f];
-                    if w > 0.0 && w >= cutoff {
+                    if support.keeps(w) {
                         let (h, f) = (h as u32, f as u32);
                         if estimator.extreme(h, f) {
                             row.push_extreme(w);
@@ -139,6 +165,6 @@ pub fn enumerate_with(kernel: &ScenarioKernel, relative: f64) -> Option<Enumerat
         tally,
         kept,
         outcomes,
-        neglected_bound: (outcomes - kept) as f64 * cutoff,
+        neglected_bound: (outcomes - kept) as f64 * support.cutoff,
     })
 }

@@ -205,29 +205,46 @@ impl AssumptionKey {
         }
     }
 
-    /// The table holding the key in a plan's TOML (`None`: the table is missing).
-    fn holder<'t>(&self, plan: &'t mut toml::Table) -> Result<&'t mut toml::Table, String> {
+    /// Where the key's table sits in a plan's TOML: the top-level table, and for a
+    /// hypothesis's key its index among the `[[hypothesis]]` tables.
+    fn locate(&self, plan: &toml::Table) -> Result<Option<usize>, String> {
         match &self.hypothesis {
             Some(name) => plan
-                .get_mut("hypothesis")
-                .and_then(|v| v.as_array_mut())
+                .get("hypothesis")
+                .and_then(|v| v.as_array())
                 .and_then(|hs| {
-                    hs.iter_mut()
-                        .find(|h| h.get("name").and_then(|n| n.as_str()) == Some(name.as_str()))
+                    hs.iter()
+                        .position(|h| h.get("name").and_then(|n| n.as_str()) == Some(name.as_str()))
                 })
-                .and_then(|h| h.as_table_mut())
+                .map(Some)
                 .ok_or_else(|| format!("the plan has no [[hypothesis]] named \"{name}\"")),
             None => plan
-                .get_mut(self.table)
-                .and_then(|v| v.as_table_mut())
+                .get(self.table)
+                .is_some_and(toml::Value::is_table)
+                .then_some(None)
                 .ok_or_else(|| format!("the plan has no [{}] table", self.table)),
         }
     }
 
+    /// The table holding the key, for writing.
+    fn holder<'t>(&self, plan: &'t mut toml::Table) -> Result<&'t mut toml::Table, String> {
+        let at = self.locate(plan)?;
+        let v = plan.get_mut(self.table).expect("located");
+        let t = match at {
+            Some(i) => v.as_array_mut().and_then(|hs| hs.get_mut(i)),
+            None => Some(v),
+        };
+        Ok(t.and_then(|t| t.as_table_mut()).expect("located"))
+    }
+
     /// The plan's value of this key (its default when absent).
     pub fn value_in(&self, plan: &toml::Table) -> Result<f64, String> {
-        let mut copy = plan.clone();
-        let holder = self.holder(&mut copy)?;
+        let at = self.locate(plan)?;
+        let v = &plan[self.table];
+        let holder = match at {
+            Some(i) => &v[i],
+            None => v,
+        };
         match holder.get(self.name) {
             Some(toml::Value::Float(x)) => Ok(*x),
             Some(toml::Value::Integer(i)) => Ok(*i as f64),

@@ -118,19 +118,15 @@ pub fn assurance(
 ) -> Result<AssuranceReport, PlanError> {
     let variants = variants(plan, spec);
     let failed_draws = variants.iter().filter(|v| v.is_none()).count();
-    let variant_views: Vec<Option<Vec<Option<View>>>> =
-        variants.par_iter().map(|v| v.as_ref().map(views)).collect();
-    let studies = (plan.study().experiments as usize).min(variants.len());
+    let variant_views = drawn_views(&variants);
+    let studies = studies(plan, &variants);
     let mut designs = Vec::new();
     for (d, view) in views(plan).iter().enumerate() {
         let Some(view) = view else { continue };
         progress(Event::Start(Phase::Assumptions {
             design: plan.designs()[d].name.clone(),
         }));
-        let per_draw: Vec<Option<&View>> = variant_views
-            .iter()
-            .map(|vs| vs.as_ref().and_then(|vs| vs[d].as_ref()))
-            .collect();
+        let per_draw = of_design(&variant_views, d);
         let point = |chosen: Chosen| point_at(view, &per_draw, &variants[..studies], d, chosen);
         let at_plan_answer = view.answer().map(|a| point(a.chosen));
         let (assured, note) = match spec.target {
@@ -217,16 +213,37 @@ pub fn assurance_at(
     chosen: Chosen,
 ) -> Option<AssuredPoint> {
     let variants = variants(plan, spec);
-    let all: Vec<Option<Vec<Option<View>>>> =
-        variants.iter().map(|v| v.as_ref().map(views)).collect();
-    let per_draw: Vec<Option<&View>> = all
-        .iter()
-        .map(|vs| vs.as_ref().and_then(|vs| vs[d].as_ref()))
-        .collect();
+    let all = drawn_views(&variants);
     let base = views(plan);
     let view = base.get(d)?.as_ref()?;
-    let studies = (plan.study().experiments as usize).min(variants.len());
-    Some(point_at(view, &per_draw, &variants[..studies], d, chosen))
+    let studies = studies(plan, &variants);
+    Some(point_at(
+        view,
+        &of_design(&all, d),
+        &variants[..studies],
+        d,
+        chosen,
+    ))
+}
+
+/// The views of every drawn plan (`None` for a refused draw).
+fn drawn_views(variants: &[Option<Plan>]) -> Vec<Option<Vec<Option<View<'_>>>>> {
+    variants.par_iter().map(|v| v.as_ref().map(views)).collect()
+}
+
+/// Design `d`'s view in each drawn plan.
+fn of_design<'a, 'p>(
+    all: &'a [Option<Vec<Option<View<'p>>>>],
+    d: usize,
+) -> Vec<Option<&'a View<'p>>> {
+    all.iter()
+        .map(|vs| vs.as_ref().and_then(|vs| vs[d].as_ref()))
+        .collect()
+}
+
+/// Drawn sets that also get one simulated study each: the first `experiments`.
+fn studies(plan: &Plan, variants: &[Option<Plan>]) -> usize {
+    (plan.study().experiments as usize).min(variants.len())
 }
 
 /// The cheapest design (fewest animals when nothing costs) whose every test's assurance
