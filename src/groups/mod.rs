@@ -26,6 +26,7 @@ pub mod grid;
 pub mod hypotheses;
 pub mod kernel;
 pub mod population;
+pub mod random_effects;
 pub mod summary;
 
 pub use effort::{Allocation, EffortSplit};
