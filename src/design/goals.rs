@@ -116,6 +116,11 @@ pub struct Animals {
     pub slopes: Slopes,
     /// Most trials one animal can be given (habituation), if limited.
     pub trial_cap: Option<u32>,
+    /// Gauss–Hermite nodes per random effect of the random-effects analysis, when the plan
+    /// asks for it (`random_effects = true`); `Some(0)` means the default for the model's
+    /// dimension.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub random_effects: Option<u32>,
 }
 
 /// Between-animal variation beyond the intercepts (docs/groups.md, "Random slopes, σ and

@@ -12,7 +12,8 @@
 //! that does not converge or does not identify its parameters) is left out of the group test
 //! and counted; the pooled fit still uses its counts, since pooling sums counts, not fits.
 
-use super::population::Deviation;
+use super::population::{Deviation, Population};
+use super::random_effects::{Layout, YesNoRow};
 use crate::simulate::ReplicateRng;
 
 /// One animal's fitted values (standard errors are not needed by the two-stage tests).
@@ -88,6 +89,16 @@ pub trait AnimalPath: Sync {
     fn fit_animal(&self, counts: &Self::Counts) -> Option<AnimalEstimate>;
     /// Fits summed counts, with the covariance of the estimates.
     fn fit_pooled(&self, counts: &Self::Counts) -> Option<PooledEstimate>;
+    /// The random-effects model's structure for this design (`None`: the design's records
+    /// are not yes/no counts, so the random-effects analysis does not apply).
+    fn random_effects_layout(&self, _population: &Population) -> Option<Layout> {
+        None
+    }
+    /// One animal's counts as yes/no rows, one per condition (raw, no correction: the
+    /// random-effects likelihood needs none).
+    fn yes_no_rows(&self, _counts: &Self::Counts) -> Option<Vec<YesNoRow>> {
+        None
+    }
 }
 
 #[cfg(test)]

@@ -10,11 +10,14 @@
 //! single-subject rule for datasets without a fit), so a fix to either lands here too.
 
 use super::animal::{AnimalEstimate, AnimalPath, PooledEstimate};
-use super::population::Deviation;
+use super::population::{Deviation, Population};
+use super::random_effects::{Layout, YesNoRow};
+use crate::cells::coarsening::BlockKind;
 use crate::cells::error::SpecError;
 use crate::cells::observation_model::ObservationModel;
 use crate::cells::parameter_map::{SLOT_CRITERION, SLOT_D_PRIME, SLOT_LN_SIGMA, Slot};
 use crate::cells::spec::ConditionSpec;
+use crate::cells::spec::Record;
 use crate::design::Design;
 use crate::design::model::{condition_specs, truth_specs};
 use crate::engine::general_fit::{FittedDataset, GeneralEstimator, GeneralFit};
@@ -123,6 +126,63 @@ impl AnimalPath for CellsAnimals {
             criterion: naturals.iter().map(|v| v.criterion).collect(),
             ln_sigma: entry(model, 0, SLOT_LN_SIGMA).map(|i| fitted.result.theta[i]),
         })
+    }
+
+    /// Yes/no full-count conditions only, with every d′ and c estimated (shared ones read
+    /// one fixed effect); slopes where the population has them and the conditions differ.
+    fn random_effects_layout(&self, population: &Population) -> Option<Layout> {
+        let model = self.model();
+        let conditions = model.conditions();
+        let mut pairs = Vec::with_capacity(conditions.len());
+        for (j, c) in conditions.iter().enumerate() {
+            let full = matches!(c.record, Record::Full { .. }) && c.categories == 2;
+            let (Some(d), Some(k)) = (
+                entry(model, j, SLOT_D_PRIME),
+                entry(model, j, SLOT_CRITERION),
+            ) else {
+                return None;
+            };
+            if !full {
+                return None;
+            }
+            pairs.push((d, k));
+        }
+        // Every θ entry must be one of these d′ or c (no σ, base rate or spacing).
+        let fixed = model.dim();
+        if (0..fixed).any(|i| !pairs.iter().any(|&(d, c)| d == i || c == i)) {
+            return None;
+        }
+        let several = pairs.len() > 1;
+        let criteria_differ = pairs.iter().any(|p| p.1 != pairs[0].1);
+        let d_primes_differ = pairs.iter().any(|p| p.0 != pairs[0].0);
+        Some(Layout {
+            fixed,
+            conditions: pairs,
+            criterion_slope: several
+                && criteria_differ
+                && population.slopes.sd_criterion_shift > 0.0,
+            d_prime_slope: several && d_primes_differ && population.slopes.sd_d_prime_change > 0.0,
+            group_column: false,
+        })
+    }
+
+    fn yes_no_rows(&self, table: &Vec<u64>) -> Option<Vec<YesNoRow>> {
+        let model = self.model();
+        let mut rows = vec![[0u64; 4]; model.conditions().len()];
+        let mut offset = 0;
+        for block in model.blocks() {
+            let cells = block.cells.len();
+            let counts = &table[offset..offset + cells];
+            offset += cells;
+            let total: u64 = counts.iter().sum();
+            let row = &mut rows[block.condition];
+            match block.kind {
+                BlockKind::PresentTrials if cells == 2 => *row = [total, counts[1], row[2], row[3]],
+                BlockKind::AbsentTrials if cells == 2 => *row = [row[0], row[1], total, counts[1]],
+                _ => return None,
+            }
+        }
+        Some(rows)
     }
 
     fn fit_pooled(&self, table: &Vec<u64>) -> Option<PooledEstimate> {

@@ -7,7 +7,8 @@
 //! Galanter (1967) covariance.
 
 use super::animal::{AnimalEstimate, AnimalPath, PooledEstimate};
-use super::population::Deviation;
+use super::population::{Deviation, Population};
+use super::random_effects::{Layout, YesNoRow};
 use crate::design::{Condition, Split};
 use crate::engine::yesno_kernel::YesNoEstimator;
 use crate::fit::{YesNoFit, fit_yes_no};
@@ -128,6 +129,20 @@ impl AnimalPath for YesNoAnimals {
             criterion: vec![fit.measures.criterion],
             ln_sigma: None,
         })
+    }
+
+    fn random_effects_layout(&self, _population: &Population) -> Option<Layout> {
+        Some(Layout {
+            fixed: 2,
+            conditions: vec![(0, 1)],
+            criterion_slope: false,
+            d_prime_slope: false,
+            group_column: false,
+        })
+    }
+
+    fn yes_no_rows(&self, c: &YesNoCounts) -> Option<Vec<YesNoRow>> {
+        Some(vec![[c.present, c.hits, c.absent, c.false_alarms]])
     }
 
     fn fit_pooled(&self, c: &YesNoCounts) -> Option<PooledEstimate> {

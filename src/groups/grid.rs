@@ -138,7 +138,7 @@ pub fn point_kernel(
 
 fn boxed<P: AnimalPath + 'static>(path: P, setup: &DesignSetup, animals: u32) -> PointKernel {
     let study = &setup.plan.study();
-    Box::new(GroupKernel::new(
+    let kernel = GroupKernel::new(
         path,
         setup.population,
         animals,
@@ -146,7 +146,12 @@ fn boxed<P: AnimalPath + 'static>(path: P, setup: &DesignSetup, animals: u32) ->
         study.alpha,
         study.confidence,
         setup.truth(),
-    ))
+    );
+    let nodes = setup.plan.animals().as_ref().and_then(|a| a.random_effects);
+    Box::new(match nodes {
+        Some(n) => kernel.with_random_effects(n),
+        None => kernel,
+    })
 }
 
 #[cfg(test)]

@@ -13,6 +13,9 @@ use super::animal::{AnimalEstimate, AnimalPath, PooledEstimate, criterion_index,
 use super::approximation::t_quantile;
 use super::hypotheses::GroupTest;
 use super::population::{Deviation, Population};
+use super::random_effects::{
+    RandomEffectsAnalysis, RandomEffectsTally, Start, YesNoRow, default_nodes,
+};
 use crate::engine::parallel::Kernel;
 use crate::infer::{FourthMoments, Moments};
 use crate::simulate::ReplicateRng;
@@ -30,7 +33,7 @@ pub struct PrecisionTally {
 }
 
 impl PrecisionTally {
-    fn push(&mut self, est: f64, se: f64, half: f64, truth: f64) {
+    pub fn push(&mut self, est: f64, se: f64, half: f64, truth: f64) {
         self.estimate.push(est, 1.0);
         self.se.push(se, 1.0);
         self.half_width.push(half, 1.0);
@@ -39,7 +42,7 @@ impl PrecisionTally {
         }
     }
 
-    fn merge(&mut self, o: &Self) {
+    pub fn merge(&mut self, o: &Self) {
         self.estimate.merge(&o.estimate);
         self.se.merge(&o.se);
         self.half_width.merge(&o.half_width);
@@ -103,6 +106,9 @@ pub struct GroupTally {
     pub pooled_criterion: PrecisionTally,
     pub pooled_d_prime: PrecisionTally,
     pub pooled_failed: u64,
+    /// The random-effects analysis, when the plan asks for it.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub random_effects: Option<RandomEffectsTally>,
 }
 
 /// One group study of `animals` animals of one design at one trial count.
@@ -118,6 +124,8 @@ pub struct GroupKernel<P: AnimalPath> {
     t_crit: Vec<f64>,
     /// Population means of c and d′ in the first condition.
     truth: (f64, f64),
+    /// The random-effects analysis, when asked for and the design allows it.
+    random_effects: Option<RandomEffectsAnalysis>,
 }
 
 /// What one simulated population gives: usable fits, drops, and the pooled fit.
@@ -125,6 +133,38 @@ struct Study {
     fits: Vec<AnimalEstimate>,
     dropped: u64,
     pooled: Option<PooledEstimate>,
+    /// Every animal's yes/no rows, kept for the random-effects analysis.
+    tables: Vec<Vec<YesNoRow>>,
+}
+
+impl Study {
+    /// Where a random-effects fit of this study starts: the pooled fit's (d′, c) of each
+    /// condition, and the spread of the per-animal estimates for the SDs (half of it for
+    /// the slopes, which are differences).
+    fn start(&self, conditions: usize, q: usize) -> Start {
+        let values = match &self.pooled {
+            Some(p) => (0..conditions)
+                .map(|j| (p.values[d_prime_index(j)], p.values[criterion_index(j)]))
+                .collect(),
+            None => vec![(1.0, 0.0); conditions],
+        };
+        let sd = |f: &dyn Fn(&AnimalEstimate) -> f64| {
+            let m: Moments = self.fits.iter().map(f).collect();
+            let v = if self.fits.len() >= 2 {
+                m.variance(false).sqrt()
+            } else {
+                0.3
+            };
+            if v.is_finite() { v.max(0.1) } else { 0.3 }
+        };
+        let mut sds = vec![sd(&|e| e.d_prime[0]), sd(&|e| e.criterion[0])];
+        sds.resize(q, 0.5 * sds[1]);
+        Start {
+            values,
+            sds,
+            difference: 0.0,
+        }
+    }
 }
 
 impl<P: AnimalPath> GroupKernel<P> {
@@ -151,7 +191,26 @@ impl<P: AnimalPath> GroupKernel<P> {
             z_crit: crate::infer::z_critical(level),
             t_crit,
             truth,
+            random_effects: None,
         }
+    }
+
+    /// Adds the random-effects analysis with `nodes` quadrature nodes per dimension (0: the
+    /// default for the model's dimension), when the design's records allow it (yes/no
+    /// counts); otherwise the kernel is unchanged.
+    pub fn with_random_effects(mut self, nodes: u32) -> Self {
+        self.random_effects = self
+            .path
+            .random_effects_layout(&self.population)
+            .map(|layout| {
+                let n = if nodes == 0 {
+                    default_nodes(layout.q())
+                } else {
+                    nodes as usize
+                };
+                RandomEffectsAnalysis::new(layout, n)
+            });
+        self
     }
 
     /// `animals` animals of one population; `seeds` gives one seed per animal, in order.
@@ -159,11 +218,17 @@ impl<P: AnimalPath> GroupKernel<P> {
         let mut pool = self.path.empty();
         let mut fits = Vec::with_capacity(animals as usize);
         let mut dropped = 0;
+        let mut tables = Vec::new();
         for _ in 0..animals {
             let mut rng = ReplicateRng::seed_from_u64(seeds.next_u64());
             let deviation: Deviation = self.population.draw(&mut rng).shifted(shift);
             let counts = self.path.simulate(&mut rng, &deviation);
             self.path.add(&mut pool, &counts);
+            if self.random_effects.is_some()
+                && let Some(rows) = self.path.yes_no_rows(&counts)
+            {
+                tables.push(rows);
+            }
             match self.path.fit_animal(&counts) {
                 Some(e) => fits.push(e),
                 None => dropped += 1,
@@ -173,6 +238,7 @@ impl<P: AnimalPath> GroupKernel<P> {
             fits,
             dropped,
             pooled: self.path.fit_pooled(&pool),
+            tables,
         }
     }
 
@@ -225,6 +291,10 @@ impl<P: AnimalPath> Kernel for GroupKernel<P> {
     fn tally(&self) -> GroupTally {
         GroupTally {
             tests: vec![GroupTestTally::default(); self.tests.len()],
+            random_effects: self
+                .random_effects
+                .as_ref()
+                .map(|_| RandomEffectsTally::new(self.tests.len())),
             ..GroupTally::default()
         }
     }
@@ -244,6 +314,19 @@ impl<P: AnimalPath> Kernel for GroupKernel<P> {
         tally.animals += u64::from(self.animals);
         tally.animals_dropped += main.dropped;
         self.record_precision(&main, tally);
+        if let (Some(analysis), Some(into)) = (&self.random_effects, tally.random_effects.as_mut())
+        {
+            let start = main.start(analysis.layout.conditions.len(), analysis.layout.q());
+            analysis.record_study(
+                &main.tables,
+                &start,
+                &self.tests,
+                self.alpha,
+                self.z_crit,
+                self.truth,
+                into,
+            );
+        }
         for (test, into) in self.tests.iter().zip(tally.tests.iter_mut()) {
             if test.two_populations() {
                 continue;
@@ -264,7 +347,8 @@ impl<P: AnimalPath> Kernel for GroupKernel<P> {
             into.record([at_null.0, at_truth.0], [at_null.1, at_truth.1]);
         }
         // A group difference is its own study: half the animals from each population.
-        for (test, into) in self.tests.iter().zip(tally.tests.iter_mut()) {
+        for (index, test) in self.tests.iter().enumerate() {
+            let into = &mut tally.tests[index];
             let super::hypotheses::GroupContrast::GroupDifference { shift, .. } = test.contrast
             else {
                 continue;
@@ -290,6 +374,22 @@ impl<P: AnimalPath> Kernel for GroupKernel<P> {
                 (two, pooled)
             });
             into.record([at_null.0, at_truth.0], [at_null.1, at_truth.1]);
+            if let (Some(analysis), Some(re)) =
+                (&self.random_effects, tally.random_effects.as_mut())
+            {
+                let layout = &analysis.layout;
+                let mut start = first.start(layout.conditions.len(), layout.q());
+                let second_start = second.start(layout.conditions.len(), layout.q());
+                start.difference = second_start.values[0].1 - start.values[0].1;
+                analysis.record_groups(
+                    &first.tables,
+                    &second.tables,
+                    &start,
+                    test,
+                    self.alpha,
+                    &mut re.tests[index],
+                );
+            }
         }
     }
 
@@ -306,6 +406,9 @@ impl<P: AnimalPath> Kernel for GroupKernel<P> {
         into.pooled_criterion.merge(&o.pooled_criterion);
         into.pooled_d_prime.merge(&o.pooled_d_prime);
         into.pooled_failed += o.pooled_failed;
+        if let (Some(a), Some(b)) = (into.random_effects.as_mut(), o.random_effects.as_ref()) {
+            a.merge(b);
+        }
     }
 }
 

@@ -8,6 +8,7 @@
 
 use super::hypotheses::GroupTest;
 use super::kernel::{GroupTally, GroupTestTally, PrecisionTally};
+use super::random_effects::RandomEffectsTally;
 use crate::design::goals::TestKind;
 use crate::engine::summary::MC_LEVEL;
 use crate::engine::{Figure, Share};
@@ -74,6 +75,71 @@ pub struct GroupSummary {
     pub failed_studies: Share,
     /// Share of studies whose pooled fit failed.
     pub pooled_failed: Share,
+    /// The random-effects analysis, when the plan asks for it and the design allows it.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub random_effects: Option<RandomEffectsSummary>,
+}
+
+/// Power of one hypothesis under the random-effects analysis: Wald z and signed-root LR.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RandomEffectsTestSummary {
+    pub name: String,
+    pub wald: Share,
+    pub lr: Share,
+    pub wald_failed: Share,
+    pub lr_failed: Share,
+    /// Rejections of the contrast's true value (false positives).
+    pub wald_false: Share,
+    pub lr_false: Share,
+}
+
+/// What the random-effects analysis gives at one grid point.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RandomEffectsSummary {
+    /// Share of studies whose fit converged.
+    pub converged: Share,
+    /// Mean Newton steps of a converged fit.
+    pub mean_steps: f64,
+    /// The fitted population mean c and d′ (first condition), Wald SEs and z intervals.
+    pub criterion: GroupPrecision,
+    pub d_prime: GroupPrecision,
+    /// Mean fitted between-animal SDs of c and d′.
+    pub sd_criterion: Figure,
+    pub sd_d_prime: Figure,
+    pub tests: Vec<RandomEffectsTestSummary>,
+}
+
+fn random_effects_summary(
+    tests: &[GroupTest],
+    t: &RandomEffectsTally,
+    studies: u64,
+    truth: (f64, f64),
+) -> RandomEffectsSummary {
+    let figure = |m: &crate::infer::Moments| Figure {
+        value: m.mean(),
+        mc_se: m.mc_se(false),
+    };
+    RandomEffectsSummary {
+        converged: share(t.fits, t.fits + t.failed),
+        mean_steps: t.steps.mean(),
+        criterion: precision(&t.criterion, truth.0),
+        d_prime: precision(&t.d_prime, truth.1),
+        sd_criterion: figure(&t.sd_criterion),
+        sd_d_prime: figure(&t.sd_d_prime),
+        tests: tests
+            .iter()
+            .zip(&t.tests)
+            .map(|(test, x)| RandomEffectsTestSummary {
+                name: test.name.clone(),
+                wald: share(x.wald_reject, studies),
+                lr: share(x.lr_reject, studies),
+                wald_failed: share(x.wald_failed, studies),
+                lr_failed: share(x.lr_failed, studies),
+                wald_false: share(x.wald_false, studies),
+                lr_false: share(x.lr_false, studies),
+            })
+            .collect(),
+    }
 }
 
 /// A Monte Carlo proportion x/n with its Wilson 95% interval.
@@ -150,6 +216,10 @@ pub fn summarise(tests: &[GroupTest], tally: &GroupTally, truth: (f64, f64)) -> 
         animals_dropped: share(tally.animals_dropped, tally.animals),
         failed_studies: share(tally.failed_studies, n),
         pooled_failed: share(tally.pooled_failed, n),
+        random_effects: tally
+            .random_effects
+            .as_ref()
+            .map(|t| random_effects_summary(tests, t, n, truth)),
     }
 }
 

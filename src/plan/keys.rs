@@ -90,6 +90,8 @@ pub const TABLE_KEYS: &[(&str, &[&str])] = &[
             "sd_ln_sigma",
             "sd_lapse_rate",
             "trial_cap",
+            "random_effects",
+            "quadrature_nodes",
         ],
     ),
     ("budget", &["cost_per_animal", "cost_per_trial", "total"]),
@@ -208,6 +210,12 @@ pub fn allowed(key: &str) -> &'static str {
         }
         "trial_cap" => {
             "the most trials one animal can be given, a whole number at least as large as the smallest trial count of some design"
+        }
+        "random_effects" => {
+            "true or false (default false): add the random-effects analysis (a probit mixed model of all animals at once) beside the two-stage and pooled ones; yes/no designs only"
+        }
+        "quadrature_nodes" => {
+            "a whole number from 1 to 15: Gauss–Hermite nodes per random effect in the random-effects fit (1 = the Laplace approximation; default 7 with two random effects, 5 with three, 4 with four); needs random_effects = true"
         }
         "budget" => "a [budget] table with cost_per_animal and cost_per_trial",
         "cost_per_animal" => "a number ≥ 0",

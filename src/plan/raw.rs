@@ -164,6 +164,8 @@ pub struct RawAnimals {
     pub sd_ln_sigma: Option<Spanned<f64>>,
     pub sd_lapse_rate: Option<Spanned<f64>>,
     pub trial_cap: Option<Spanned<i64>>,
+    pub random_effects: Option<Spanned<bool>>,
+    pub quadrature_nodes: Option<Spanned<i64>>,
 }
 
 /// `[budget]`: what animals and trials cost.

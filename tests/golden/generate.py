@@ -29,6 +29,7 @@ from rating_files import rating_equal_variance, rating_unequal_variance
 from pilot_files import pilot_moments
 from assurance_files import assurance, assurance_plan
 from two_choice_files import two_choice
+from random_effects_files import random_effects
 
 REFS = "tabulated"  # a check value fixed in advance and asserted to its stated precision
 # Check values fixed in advance that this script reproduces (see each function).
@@ -329,6 +330,7 @@ def main():
     assurance()
     assurance_plan()
     two_choice()
+    random_effects()
     if PRINTED_CHECKS["count"] != EXPECTED_PRINTED_CHECKS:
         raise AssertionError(f"checked {PRINTED_CHECKS['count']} tabulated values, "
                              f"expected {EXPECTED_PRINTED_CHECKS}")

@@ -72,9 +72,11 @@ impl AnimalRows {
     }
 }
 
-/// The parameters in the form an evaluation needs: β, L (lower triangle, row-major) and the
-/// index of every parameter. θ = (β, λ) with λ the lower triangle of L row by row, its
-/// diagonal entries on the log scale (so L stays a Cholesky factor).
+/// The parameters in the form an evaluation needs: β and L. θ = (β, λ) with λ the lower
+/// triangle of L row by row. The diagonal is not constrained to be positive: Σ = L·Lᵀ is a
+/// covariance for any L, and the likelihood is even in each column's sign, so an SD of 0 is
+/// an ordinary interior point where the gradient vanishes (a log scale would put it at −∞,
+/// where Newton steps crawl and never converge).
 #[derive(Debug, Clone)]
 pub struct Parameters {
     pub p: usize,
@@ -95,7 +97,7 @@ impl Parameters {
         let mut i = p;
         for a in 0..q {
             for b in 0..=a {
-                l[a * q + b] = if a == b { theta[i].exp() } else { theta[i] };
+                l[a * q + b] = theta[i];
                 i += 1;
             }
         }
@@ -367,14 +369,13 @@ pub fn add_animal(
         }
         for r in 0..rows.rows() {
             let (s, h) = sc.row_sh[r];
-            // ∂η_r/∂θ: x_r for β, z_ra·u_b (× L_aa on the log diagonal) for L_ab.
+            // ∂η_r/∂θ: x_r for β, z_ra·u_b for L_ab; η is linear in both, so ∂²η = 0.
             sc.d_eta[..p].copy_from_slice(&rows.x[r * p..(r + 1) * p]);
             let z = &rows.z[r * q..(r + 1) * q];
             let mut i = p;
             for a in 0..q {
                 for b in 0..=a {
-                    let jac = if a == b { params.l[a * q + a] } else { 1.0 };
-                    sc.d_eta[i] = z[a] * sc.u[b] * jac;
+                    sc.d_eta[i] = z[a] * sc.u[b];
                     i += 1;
                 }
             }
@@ -388,16 +389,6 @@ pub fn add_animal(
                     for l in 0..=k {
                         sc.s2[k * len + l] += dk * sc.d_eta[l];
                     }
-                }
-            }
-            // ∂²η/∂λ_aa² = ∂η/∂λ_aa (the log diagonal); every other second derivative is 0.
-            let mut i = p;
-            for a in 0..q {
-                for b in 0..=a {
-                    if a == b {
-                        sc.s2[i * len + i] += omega * s * sc.d_eta[i];
-                    }
-                    i += 1;
                 }
             }
         }

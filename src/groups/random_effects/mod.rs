@@ -12,10 +12,16 @@
 //! and [`analysis`] runs the Wald and likelihood-ratio tests of the plan's hypotheses.
 //! docs/groups.md documents the model and the choice of quadrature.
 
+pub mod analysis;
 pub mod fit;
+pub mod layout;
 pub mod marginal;
 pub mod quadrature;
+pub mod tally;
 
+pub use analysis::{RandomEffectsAnalysis, Start, default_nodes};
 pub use fit::{FitFailure, MixedFit, MixedProblem, Restriction};
+pub use layout::{Layout, YesNoRow};
 pub use marginal::AnimalRows;
 pub use quadrature::{HermiteRule, ProductGrid};
+pub use tally::{RandomEffectsTally, RandomEffectsTestTally};

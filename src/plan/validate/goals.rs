@@ -296,6 +296,26 @@ fn animals(ctx: &Ctx, a: &RawAnimals, designs: &[Design]) -> Result<Animals, Pla
             Some(cap.min(i64::from(u32::MAX)) as u32)
         }
     };
+    let wanted = a.random_effects.as_ref().is_some_and(|b| *b.get_ref());
+    let random_effects = match (&a.quadrature_nodes, wanted) {
+        (Some(n), false) => {
+            return Err(ctx.at(
+                n,
+                "quadrature_nodes",
+                "quadrature_nodes needs random_effects = true".into(),
+            ));
+        }
+        (Some(n), true) if !(1..=15).contains(n.get_ref()) => {
+            return Err(ctx.at(
+                n,
+                "quadrature_nodes",
+                format!("{} nodes is outside 1 to 15", n.get_ref()),
+            ));
+        }
+        (Some(n), true) => Some(*n.get_ref() as u32),
+        (None, true) => Some(0),
+        (None, false) => None,
+    };
     Ok(Animals {
         counts,
         sd_d_prime: sd(&a.sd_d_prime, "sd_d_prime")?,
@@ -304,6 +324,7 @@ fn animals(ctx: &Ctx, a: &RawAnimals, designs: &[Design]) -> Result<Animals, Pla
         // Filled in by `animal_slopes`, which needs the observer's lapse rate.
         slopes: Default::default(),
         trial_cap,
+        random_effects,
     })
 }
 

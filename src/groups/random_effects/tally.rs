@@ -1,0 +1,116 @@
+//! What the random-effects analysis accumulates over simulated studies.
+
+use super::fit::MixedFit;
+use super::layout::Layout;
+use crate::groups::kernel::PrecisionTally;
+use crate::infer::Moments;
+use serde::{Deserialize, Serialize};
+
+/// Rejections and failures of one hypothesis under the random-effects analysis.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub struct RandomEffectsTestTally {
+    pub wald_reject: u64,
+    pub lr_reject: u64,
+    /// Studies where the Wald test had no answer (the fit failed).
+    pub wald_failed: u64,
+    /// Studies where the LR test had no answer (the full or the restricted fit failed).
+    pub lr_failed: u64,
+    /// Rejections of the contrast's true value: false positives of each test.
+    pub wald_false: u64,
+    pub lr_false: u64,
+}
+
+impl RandomEffectsTestTally {
+    /// Records one study: (Wald, LR) against the null, then against the truth.
+    pub fn record(
+        &mut self,
+        at_null: (Option<bool>, Option<bool>),
+        at_truth: (Option<bool>, Option<bool>),
+    ) {
+        match at_null.0 {
+            Some(r) => self.wald_reject += u64::from(r),
+            None => self.wald_failed += 1,
+        }
+        match at_null.1 {
+            Some(r) => self.lr_reject += u64::from(r),
+            None => self.lr_failed += 1,
+        }
+        self.wald_false += u64::from(at_truth.0 == Some(true));
+        self.lr_false += u64::from(at_truth.1 == Some(true));
+    }
+
+    pub fn merge(&mut self, o: &Self) {
+        self.wald_reject += o.wald_reject;
+        self.lr_reject += o.lr_reject;
+        self.wald_failed += o.wald_failed;
+        self.lr_failed += o.lr_failed;
+        self.wald_false += o.wald_false;
+        self.lr_false += o.lr_false;
+    }
+}
+
+/// Everything the random-effects analysis of a grid cell accumulates.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+pub struct RandomEffectsTally {
+    /// Main-study fits that converged, and that failed.
+    pub fits: u64,
+    pub failed: u64,
+    /// Newton steps of the converged fits.
+    pub steps: Moments,
+    /// The fitted population mean c and d′ of the first condition, Wald SEs and intervals.
+    pub criterion: PrecisionTally,
+    pub d_prime: PrecisionTally,
+    /// The fitted between-animal SDs of c and d′.
+    pub sd_criterion: Moments,
+    pub sd_d_prime: Moments,
+    pub tests: Vec<RandomEffectsTestTally>,
+}
+
+impl RandomEffectsTally {
+    pub fn new(tests: usize) -> Self {
+        Self {
+            tests: vec![RandomEffectsTestTally::default(); tests],
+            ..Self::default()
+        }
+    }
+
+    /// Records the main study's fit (or its failure).
+    pub fn record_fit(
+        &mut self,
+        fit: Option<&MixedFit>,
+        layout: &Layout,
+        z: f64,
+        truth: (f64, f64),
+    ) {
+        let Some(fit) = fit else {
+            self.failed += 1;
+            return;
+        };
+        self.fits += 1;
+        self.steps.push(fit.steps as f64, 1.0);
+        let (p, q) = (layout.p(), layout.q());
+        let (d, c) = layout.conditions[0];
+        if let (Some((ce, cs)), Some((de, ds))) =
+            (fit.contrast(&[(c, 1.0)], p), fit.contrast(&[(d, 1.0)], p))
+        {
+            self.criterion.push(ce, cs, z * cs, truth.0);
+            self.d_prime.push(de, ds, z * ds, truth.1);
+        }
+        let sigma = fit.sigma(p, q);
+        self.sd_d_prime.push(sigma[0].sqrt(), 1.0);
+        self.sd_criterion.push(sigma[q + 1].sqrt(), 1.0);
+    }
+
+    pub fn merge(&mut self, o: &Self) {
+        self.fits += o.fits;
+        self.failed += o.failed;
+        self.steps.merge(&o.steps);
+        self.criterion.merge(&o.criterion);
+        self.d_prime.merge(&o.d_prime);
+        self.sd_criterion.merge(&o.sd_criterion);
+        self.sd_d_prime.merge(&o.sd_d_prime);
+        for (a, b) in self.tests.iter_mut().zip(&o.tests) {
+            a.merge(b);
+        }
+    }
+}
