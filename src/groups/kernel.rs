@@ -294,7 +294,7 @@ impl<P: AnimalPath> Kernel for GroupKernel<P> {
             random_effects: self
                 .random_effects
                 .as_ref()
-                .map(|_| RandomEffectsTally::new(self.tests.len())),
+                .map(|a| RandomEffectsTally::new(self.tests.len(), a.nodes, &a.layout)),
             ..GroupTally::default()
         }
     }

@@ -96,6 +96,9 @@ pub struct RandomEffectsTestSummary {
 /// What the random-effects analysis gives at one grid point.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct RandomEffectsSummary {
+    /// Gauss–Hermite nodes per random effect, and the random effects fitted.
+    pub nodes: u32,
+    pub random: Vec<String>,
     /// Share of studies whose fit converged.
     pub converged: Share,
     /// Mean Newton steps of a converged fit.
@@ -120,6 +123,8 @@ fn random_effects_summary(
         mc_se: m.mc_se(false),
     };
     RandomEffectsSummary {
+        nodes: t.nodes,
+        random: t.random.clone(),
         converged: share(t.fits, t.fits + t.failed),
         mean_steps: t.steps.mean(),
         criterion: precision(&t.criterion, truth.0),

@@ -141,7 +141,7 @@ pub fn describe(test: &GroupTest) -> String {
     }
 }
 
-fn grid_table(d: &DesignGroups, cell: impl Fn(&GridCell) -> String) -> String {
+pub(super) fn grid_table(d: &DesignGroups, cell: impl Fn(&GridCell) -> String) -> String {
     let mut header = vec!["animals".to_string()];
     header.extend(d.trials.iter().map(|&n| {
         if d.conditions > 1 {
@@ -272,6 +272,7 @@ fn design_block(out: &mut String, r: &GroupReport, d: &DesignGroups) {
         r.rate_correction.name(),
         100.0 * failed
     );
+    super::random_effects_text::block(out, r, d, |cell| grid_table(d, cell));
     precision_reading(out, r, d);
     if let Some(e) = &d.effort {
         effort_text::effort_block(out, r, d, e);

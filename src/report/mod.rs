@@ -26,6 +26,7 @@ pub mod phase_text;
 pub mod pilot_plan;
 pub mod pilot_text;
 pub mod precision_text;
+pub mod random_effects_text;
 pub mod reading;
 pub mod report_page;
 pub mod shard_text;

@@ -39,6 +39,18 @@ impl Layout {
         2 + usize::from(self.criterion_slope) + usize::from(self.d_prime_slope)
     }
 
+    /// What each random effect is, in order.
+    pub fn random_names(&self) -> Vec<String> {
+        let mut names = vec!["d′".to_string(), "c".to_string()];
+        if self.criterion_slope {
+            names.push("criterion shift".into());
+        }
+        if self.d_prime_slope {
+            names.push("d′ change".into());
+        }
+        names
+    }
+
     /// The same layout with a group-difference column.
     pub fn with_group_column(&self) -> Self {
         Self {

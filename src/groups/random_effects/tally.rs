@@ -52,6 +52,9 @@ impl RandomEffectsTestTally {
 /// Everything the random-effects analysis of a grid cell accumulates.
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
 pub struct RandomEffectsTally {
+    /// Gauss–Hermite nodes per random effect, and the random effects' names.
+    pub nodes: u32,
+    pub random: Vec<String>,
     /// Main-study fits that converged, and that failed.
     pub fits: u64,
     pub failed: u64,
@@ -67,8 +70,10 @@ pub struct RandomEffectsTally {
 }
 
 impl RandomEffectsTally {
-    pub fn new(tests: usize) -> Self {
+    pub fn new(tests: usize, nodes: usize, layout: &Layout) -> Self {
         Self {
+            nodes: nodes as u32,
+            random: layout.random_names(),
             tests: vec![RandomEffectsTestTally::default(); tests],
             ..Self::default()
         }
