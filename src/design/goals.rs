@@ -116,6 +116,9 @@ pub struct Animals {
     pub slopes: Slopes,
     /// Most trials one animal can be given (habituation), if limited.
     pub trial_cap: Option<u32>,
+    /// Change of the animal within its session (`[animals.habituation]`), if given.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub habituation: Option<super::habituation::Habituation>,
 }
 
 /// Between-animal variation beyond the intercepts (docs/groups.md, "Random slopes, σ and

@@ -304,6 +304,8 @@ fn animals(ctx: &Ctx, a: &RawAnimals, designs: &[Design]) -> Result<Animals, Pla
         // Filled in by `animal_slopes`, which needs the observer's lapse rate.
         slopes: Default::default(),
         trial_cap,
+        // Filled in by `habituation`, which needs the designs' routes.
+        habituation: None,
     })
 }
 
