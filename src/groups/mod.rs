@@ -23,6 +23,7 @@ pub mod approximation;
 pub mod effort;
 pub mod effort_search;
 pub mod grid;
+pub mod habituation;
 pub mod hypotheses;
 pub mod kernel;
 pub mod population;
