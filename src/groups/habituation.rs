@@ -316,3 +316,110 @@ impl HabituatedYesNo {
         None
     }
 }
+
+/// The bias habituation leaves in one grid cell's group means, against the population
+/// means at presentation 0 (the plan's values), each with its Monte Carlo SE.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct BiasRow {
+    pub animals: u32,
+    /// Trials per condition.
+    pub trials: u32,
+    /// Two-stage group mean ĉ minus the population's c.
+    pub criterion: crate::engine::Figure,
+    /// Two-stage group mean d̂′ minus the population's d′.
+    pub d_prime: crate::engine::Figure,
+    /// Within-animal SE of ĉ of the population's mean animal from the expected information:
+    /// (stationary fit, trend fit) — what the trend term costs.
+    pub within_se: (f64, f64),
+}
+
+/// The habituation part of a group report.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct HabituationReport {
+    pub model: Habituation,
+    /// Per design (in plan order), one row per trial count at the largest animal count.
+    pub designs: Vec<Vec<BiasRow>>,
+}
+
+impl HabituatedYesNo {
+    /// Within-animal SEs of ĉ for the animal with this deviation, from the expected
+    /// information: the stationary closed form's (Gourevitch & Galanter 1967, at the rates
+    /// of the summed expected table, where the stationary fit converges) and the trend
+    /// fit's (inverse expected information of the trend model at the animal's values).
+    pub fn within_se(&self, deviation: &Deviation) -> (f64, f64) {
+        let e = self.expected(deviation);
+        let (mut h, mut f, mut p, mut a) = (0.0, 0.0, 0.0, 0.0);
+        for (b, (eh, ef)) in self.blocks.iter().zip(&e) {
+            (h, f, p, a) = (h + eh, f + ef, p + b.present as f64, a + b.absent as f64);
+        }
+        let var_z = |x: f64, n: f64| {
+            let r = x / n;
+            z(r).map_or(f64::NAN, |q| r * (1.0 - r) / (n * pdf(q) * pdf(q)))
+        };
+        let stationary = ((var_z(h, p) + var_z(f, a)) / 4.0).sqrt();
+        let m0 = self.centre;
+        let mut info = Matrix3::zeros();
+        for (b, (eh, ef)) in self.blocks.iter().zip(&e) {
+            let m = b.middle - m0;
+            for (x, n, y) in [
+                (Vector3::new(0.5, -1.0, -m), b.present as f64, *eh),
+                (Vector3::new(-0.5, -1.0, -m), b.absent as f64, *ef),
+            ] {
+                if n > 0.0 {
+                    // Each block's expected rate (lapses included) gives its probit and
+                    // binomial variance: the information at the trend model's best fit when
+                    // the model holds, as it does without lapses.
+                    let pi = (y / n).clamp(1e-12, 1.0 - 1e-12);
+                    let q = z(pi).unwrap_or(0.0);
+                    info += x * x.transpose() * (n * pdf(q) * pdf(q) / (pi * (1.0 - pi)));
+                }
+            }
+        }
+        let trend = info.try_inverse().map_or(f64::NAN, |c| {
+            (c[(1, 1)] + m0 * m0 * c[(2, 2)] - 2.0 * m0 * c[(1, 2)]).sqrt()
+        });
+        (stationary, trend)
+    }
+}
+
+/// The habituation report of a plan's designs, or `None` when nothing habituates.
+pub fn report(
+    setups: &[super::grid::DesignSetup],
+    designs: &[super::DesignGroups],
+) -> Option<HabituationReport> {
+    let plan = setups.first()?.plan;
+    let model = super::grid::habituation(plan)?;
+    let correction = plan.study().rate_correction;
+    let rows = setups
+        .iter()
+        .zip(designs)
+        .map(|(s, d)| {
+            let most = d.animals.iter().copied().max().unwrap_or(0);
+            let condition = &s.design.conditions[0];
+            d.cells
+                .iter()
+                .filter(|c| c.animals == most)
+                .map(|c| {
+                    let split = crate::design::split_trials(c.trials, condition.presence);
+                    let path =
+                        HabituatedYesNo::new(plan.observer(), condition, split, correction, model);
+                    let bias = |p: &super::summary::GroupPrecision| crate::engine::Figure {
+                        value: p.mean.value - p.truth,
+                        mc_se: p.mean.mc_se,
+                    };
+                    BiasRow {
+                        animals: c.animals,
+                        trials: c.trials,
+                        criterion: bias(&c.summary.criterion),
+                        d_prime: bias(&c.summary.d_prime),
+                        within_se: path.within_se(&Deviation::default()),
+                    }
+                })
+                .collect()
+        })
+        .collect();
+    Some(HabituationReport {
+        model,
+        designs: rows,
+    })
+}
