@@ -30,7 +30,11 @@ pub fn render(report: &GroupReport) -> String {
             table.add_row(vec![
                 r.trials.to_string(),
                 r.animals.to_string(),
-                format!("{} ± {}", signed(r.criterion.value), number(r.criterion.mc_se)),
+                format!(
+                    "{} ± {}",
+                    signed(r.criterion.value),
+                    number(r.criterion.mc_se)
+                ),
                 format!("{} ± {}", signed(r.d_prime.value), number(r.d_prime.mc_se)),
                 number(r.within_se.0),
                 number(r.within_se.1),

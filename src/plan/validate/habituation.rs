@@ -74,7 +74,10 @@ pub(super) fn habituation(
     }
     // Block-by-block simulation and the trend fit exist for one-condition yes/no designs.
     if out.active() {
-        if let Some(d) = designs.iter().find(|d| Route::of(d) != Route::YesNoClosedForm) {
+        if let Some(d) = designs
+            .iter()
+            .find(|d| Route::of(d) != Route::YesNoClosedForm)
+        {
             return Err(ctx.at(
                 table,
                 "habituation",
