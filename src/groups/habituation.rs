@@ -287,7 +287,8 @@ impl HabituatedYesNo {
             let mut scale = 1.0;
             let mut next = theta + step;
             let mut value = loglik(&next);
-            while !(value >= current - 1e-12) && scale > 1e-6 {
+            // A NaN likelihood counts as a decrease, so the step is halved.
+            while (value.is_nan() || value < current - 1e-12) && scale > 1e-6 {
                 scale /= 2.0;
                 next = theta + step * scale;
                 value = loglik(&next);
