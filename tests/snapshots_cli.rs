@@ -159,6 +159,7 @@ macro_rules! plan_snapshots {
 plan_snapshots! {
     base_rate_shift: "base-rate-shift", experiments "300";
     graded_alarm_response: "graded-alarm-response", experiments "300";
+    habituating_colony: "habituating-colony", experiments "300";
     playback_yes_no: "playback-yes-no", experiments "300";
     predator_model_colony: "predator-model-colony", experiments "300";
     sentinel_error_records: "sentinel-error-records", experiments "300";

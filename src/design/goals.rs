@@ -121,6 +121,9 @@ pub struct Animals {
     /// dimension.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub random_effects: Option<u32>,
+    /// Change of the animal within its session (`[animals.habituation]`), if given.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub habituation: Option<super::habituation::Habituation>,
 }
 
 /// Between-animal variation beyond the intercepts (docs/groups.md, "Random slopes, σ and

@@ -5,6 +5,7 @@
 
 mod condition_trials;
 pub mod goals;
+pub mod habituation;
 pub mod model;
 pub mod quantities;
 mod route;

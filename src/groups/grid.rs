@@ -7,6 +7,7 @@ use super::animal::AnimalPath;
 use super::animal_cells::CellsAnimals;
 use super::animal_rating::RatingAnimals;
 use super::animal_yesno::YesNoAnimals;
+use super::habituation::HabituatedYesNo;
 use super::hypotheses::GroupTest;
 use super::kernel::{GroupKernel, GroupTally};
 use super::population::Population;
@@ -115,10 +116,17 @@ pub fn point_kernel(
     let condition = &design.conditions[0];
     let split = split_trials(trials, condition.presence);
     Ok(match (Route::of(design), &design.response) {
-        (Route::YesNoClosedForm, _) => {
-            let path = YesNoAnimals::new(plan.observer(), condition, split, correction);
-            boxed(path, setup, animals)
-        }
+        (Route::YesNoClosedForm, _) => match habituation(plan) {
+            // Validated: habituation is active only where every design is one-condition yes/no.
+            Some(h) => {
+                let path = HabituatedYesNo::new(plan.observer(), condition, split, correction, h);
+                boxed(path, setup, animals)
+            }
+            None => {
+                let path = YesNoAnimals::new(plan.observer(), condition, split, correction);
+                boxed(path, setup, animals)
+            }
+        },
         (Route::RatingFastPath, Response::Rating(scale)) => {
             let path = RatingAnimals::new(scale, condition, plan.observer(), split, correction);
             boxed(path, setup, animals)
@@ -134,6 +142,14 @@ pub fn point_kernel(
             boxed(path, setup, animals)
         }
     })
+}
+
+/// The plan's habituation when it changes anything; `None` keeps today's path bit for bit.
+pub fn habituation(plan: &Plan) -> Option<crate::design::habituation::Habituation> {
+    plan.animals()
+        .as_ref()
+        .and_then(|a| a.habituation)
+        .filter(|h| h.active())
 }
 
 fn boxed<P: AnimalPath + 'static>(path: P, setup: &DesignSetup, animals: u32) -> PointKernel {

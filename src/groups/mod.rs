@@ -23,6 +23,7 @@ pub mod approximation;
 pub mod effort;
 pub mod effort_search;
 pub mod grid;
+pub mod habituation;
 pub mod hypotheses;
 pub mod kernel;
 pub mod population;
@@ -112,6 +113,9 @@ pub struct GroupReport {
     pub trial_cap: Option<u32>,
     pub budget: Option<Budget>,
     pub designs: Vec<DesignGroups>,
+    /// Habituation within the session and the bias it leaves (absent without it).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub habituation: Option<habituation::HabituationReport>,
 }
 
 pub fn setups(plan: &Plan) -> Result<Vec<DesignSetup<'_>>, GroupError> {
@@ -298,7 +302,9 @@ pub fn run_groups_with(
     if left > 0 {
         progress(Event::Skipped(left));
     }
+    let habituation = habituation::report(&setups(plan)?, &designs);
     Ok(GroupReport {
+        habituation,
         population: Population::from_animals(animals),
         lapse: plan.observer().lapse,
         alpha: plan.study().alpha,

@@ -92,7 +92,12 @@ pub const TABLE_KEYS: &[(&str, &[&str])] = &[
             "trial_cap",
             "random_effects",
             "quadrature_nodes",
+            "habituation",
         ],
+    ),
+    (
+        "habituation",
+        &["criterion_drift", "half_life", "block", "order", "analysis"],
     ),
     ("budget", &["cost_per_animal", "cost_per_trial", "total"]),
     ("assurance", &["draws", "target", "uncertain"]),
@@ -216,6 +221,22 @@ pub fn allowed(key: &str) -> &'static str {
         }
         "quadrature_nodes" => {
             "a whole number from 1 to 15: Gauss–Hermite nodes per random effect in the random-effects fit (1 = the Laplace approximation; default 7 with two random effects, 5 with three, 4 with four); needs random_effects = true"
+        }
+        "habituation" => {
+            "an [animals.habituation] table with criterion_drift, half_life, block, order and analysis (all optional); with a drift, a half-life or the trend analysis every design must be a one-condition yes/no design with a full record"
+        }
+        "criterion_drift" => {
+            "change of the animal's criterion per presentation, −1 to 1 (default 0): c_t = c + drift·t"
+        }
+        "half_life" => {
+            "presentations after which the animal's d′ has halved, a number > 0 (default: no decay)"
+        }
+        "block" => {
+            "presentations per simulated block, a whole number from 1 to 1000000 (default 10)"
+        }
+        "order" => "\"alternating\" (default), \"blocked\" or \"randomised\"",
+        "analysis" => {
+            "\"stationary\" (default: the fit ignores the drift) or \"trend\" (a linear trend in the criterion over presentations)"
         }
         "budget" => "a [budget] table with cost_per_animal and cost_per_trial",
         "cost_per_animal" => "a number ≥ 0",

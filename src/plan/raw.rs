@@ -166,6 +166,18 @@ pub struct RawAnimals {
     pub trial_cap: Option<Spanned<i64>>,
     pub random_effects: Option<Spanned<bool>>,
     pub quadrature_nodes: Option<Spanned<i64>>,
+    pub habituation: Option<Spanned<RawHabituation>>,
+}
+
+/// `[animals.habituation]`: how an animal changes over its presentations.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawHabituation {
+    pub criterion_drift: Option<Spanned<f64>>,
+    pub half_life: Option<Spanned<f64>>,
+    pub block: Option<Spanned<i64>>,
+    pub order: Option<Spanned<String>>,
+    pub analysis: Option<Spanned<String>>,
 }
 
 /// `[budget]`: what animals and trials cost.

@@ -35,6 +35,7 @@ pub fn render_section(plan: &Plan, report: &GroupReport) -> String {
     for d in &report.designs {
         design_block(&mut out, report, d);
     }
+    out.push_str(&super::habituation_text::render(report));
     let _ = writeln!(out, "Animals: {GROUP_CAUTION}");
     let _ = writeln!(out);
     out

@@ -12,6 +12,7 @@ pub mod csv_out;
 pub mod explore_text;
 pub mod format;
 pub mod groups_text;
+pub mod habituation_text;
 pub mod ideal_scan_text;
 pub mod ideal_text;
 pub mod identification_text;

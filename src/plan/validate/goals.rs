@@ -325,6 +325,8 @@ fn animals(ctx: &Ctx, a: &RawAnimals, designs: &[Design]) -> Result<Animals, Pla
         slopes: Default::default(),
         trial_cap,
         random_effects,
+        // Filled in by `habituation`, which needs the designs' routes.
+        habituation: None,
     })
 }
 

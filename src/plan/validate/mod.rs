@@ -2,13 +2,15 @@
 //!
 //! One file per plan section: `study`, `observer`, `design` (with `conditions` and the
 //! rating `scale`), `goals` (hypotheses, targets, animals, budget) and `animal_slopes` (the
-//! `[animals]` slope, σ and lapse SDs, checked against the observer's lapse rate). This file
+//! `[animals]` slope, σ and lapse SDs, checked against the observer's lapse rate) and
+//! `habituation` (`[animals.habituation]`). This file
 //! holds the error builder they share and the order in which the sections are checked.
 
 mod animal_slopes;
 mod conditions;
 mod design;
 pub(super) mod goals;
+mod habituation;
 mod observer;
 mod runnable;
 mod scale;
@@ -96,6 +98,9 @@ pub(super) fn validate(path: &Path, source: &str, raw: RawPlan) -> Result<Plan, 
     let mut goals = goals::goals(&ctx, &raw, &designs, &study, spec.payoffs)?;
     if let (Some(animals), Some(raw_animals)) = (goals.animals.as_mut(), raw.animals.as_ref()) {
         animals.slopes = animal_slopes::slopes(&ctx, raw_animals, &designs, observer.lapse)?;
+        if let Some(table) = &raw_animals.habituation {
+            animals.habituation = Some(habituation::habituation(&ctx, table, &designs)?);
+        }
     }
     // The plan's own values of the assumptions come from its text as TOML.
     let table: toml::Table = toml::from_str(source).unwrap_or_default();
