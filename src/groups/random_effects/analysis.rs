@@ -93,6 +93,7 @@ impl RandomEffectsAnalysis {
     }
 
     /// Wald and LR tests of contrast = `value` on a converged fit.
+    #[allow(clippy::too_many_arguments)]
     fn test_at(
         &self,
         layout: &Layout,

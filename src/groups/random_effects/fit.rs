@@ -106,11 +106,10 @@ pub struct MixedProblem<'a> {
 
 /// θ entries for a start: β, then SDs (diagonal of L) with zero correlations.
 pub fn start_theta(beta: &[f64], sds: &[f64]) -> Vec<f64> {
-    let q = sds.len();
     let mut theta = beta.to_vec();
-    for a in 0..q {
+    for (a, sd) in sds.iter().enumerate() {
         for b in 0..=a {
-            theta.push(if a == b { sds[a].max(0.05) } else { 0.0 });
+            theta.push(if a == b { sd.max(0.05) } else { 0.0 });
         }
     }
     theta

@@ -22,6 +22,9 @@
 //! integrates exactly, and differ from the derivatives of the adapted rule only by the rule's
 //! own error, which the node-count check in the tests bounds.
 
+// Index loops mirror the matrix formulas (rows, nodes, lower-triangle entries) one to one.
+#![allow(clippy::needless_range_loop)]
+
 use super::quadrature::ProductGrid;
 use crate::model::normal;
 
@@ -188,7 +191,7 @@ fn cholesky(a: &[f64], q: usize, c: &mut [f64]) -> bool {
                 sum -= c[i * q + k] * c[j * q + k];
             }
             if i == j {
-                if !(sum > 0.0) {
+                if sum.is_nan() || sum <= 0.0 {
                     return false;
                 }
                 c[i * q + i] = sum.sqrt();
