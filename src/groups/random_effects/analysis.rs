@@ -3,7 +3,7 @@
 //! likelihood ratio against the restricted fit, at the hypothesis's null (power) and at the
 //! population's true value (false positives), as the two-stage and pooled tests are.
 
-use super::fit::{FitFailure, MixedFit, MixedProblem, Restriction, start_theta};
+use super::fit::{FitFailure, MixedFit, MixedProblem, Restriction, coarse_grid, start_theta};
 use super::layout::{Layout, YesNoRow};
 use super::marginal::AnimalRows;
 use super::quadrature::{HermiteRule, ProductGrid};
@@ -39,6 +39,7 @@ pub struct RandomEffectsAnalysis {
     pub layout: Layout,
     pub nodes: usize,
     grid: ProductGrid,
+    coarse: ProductGrid,
 }
 
 /// A test's two outcomes: (Wald, LR), each `None` when it has no answer.
@@ -47,10 +48,12 @@ type Outcomes = (Option<bool>, Option<bool>);
 impl RandomEffectsAnalysis {
     pub fn new(layout: Layout, nodes: usize) -> Self {
         let grid = ProductGrid::new(&HermiteRule::new(nodes), layout.q());
+        let coarse = coarse_grid(layout.q());
         Self {
             layout,
             nodes,
             grid,
+            coarse,
         }
     }
 
@@ -66,6 +69,7 @@ impl RandomEffectsAnalysis {
             p: layout.p(),
             q: layout.q(),
             grid: &self.grid,
+            coarse: Some(&self.coarse),
             animals: rows,
         }
         .fit(start, restriction)

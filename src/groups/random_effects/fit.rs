@@ -28,6 +28,11 @@ pub const MAX_STEPS: usize = 100;
 
 /// Nodes per dimension of the first, coarse phase of a fit.
 pub const COARSE_NODES: usize = 3;
+/// The first phase's rule in `q` dimensions (built once per analysis, not per fit).
+pub fn coarse_grid(q: usize) -> ProductGrid {
+    ProductGrid::new(&super::quadrature::HermiteRule::new(COARSE_NODES), q)
+}
+
 /// The coarse phase hands over to the full rule once its decrement is below this.
 pub const COARSE_HANDOVER: f64 = 1e-3;
 
@@ -101,6 +106,8 @@ pub struct MixedProblem<'a> {
     pub p: usize,
     pub q: usize,
     pub grid: &'a ProductGrid,
+    /// The first phase's coarse rule ([`coarse_grid`]); `None` fits on `grid` alone.
+    pub coarse: Option<&'a ProductGrid>,
     pub animals: &'a [AnimalRows],
 }
 
@@ -183,7 +190,7 @@ impl MixedProblem<'_> {
         let params = Parameters::from_theta(theta, self.p, self.q);
         let mut totals = Totals::new(self.len());
         for (rows, mode) in self.animals.iter().zip(modes.iter_mut()) {
-            add_animal(rows, &params, grid, mode, scratch, true, &mut totals)?;
+            add_animal(rows, &params, grid, mode, scratch, &mut totals)?;
         }
         Some(totals)
     }
@@ -367,6 +374,7 @@ mod tests {
             p: 2,
             q: 2,
             grid: &grid,
+            coarse: None,
             animals: rows,
         };
         let mut sc = Scratch::new(2, 2, 2);

@@ -221,15 +221,13 @@ fn cholesky_solve(c: &[f64], q: usize, b: &mut [f64]) {
     }
 }
 
-/// g(u) and, when `curvature` is set, its gradient and −Hessian in u.
-fn g_at(rows: &AnimalRows, sc: &mut Scratch, q: usize, curvature: bool) -> f64 {
+/// g(u) with its gradient (`sc.grad_u`) and −Hessian (`sc.neg_hess_u`) in u.
+fn g_at(rows: &AnimalRows, sc: &mut Scratch, q: usize) -> f64 {
     let mut g = 0.0;
-    if curvature {
-        for a in 0..q {
-            sc.grad_u[a] = -sc.u[a];
-            for b in 0..q {
-                sc.neg_hess_u[a * q + b] = if a == b { 1.0 } else { 0.0 };
-            }
+    for a in 0..q {
+        sc.grad_u[a] = -sc.u[a];
+        for b in 0..q {
+            sc.neg_hess_u[a * q + b] = if a == b { 1.0 } else { 0.0 };
         }
     }
     for r in 0..rows.rows() {
@@ -237,12 +235,10 @@ fn g_at(rows: &AnimalRows, sc: &mut Scratch, q: usize, curvature: bool) -> f64 {
         let eta = sc.offset[r] + w.iter().zip(&sc.u).map(|(a, b)| a * b).sum::<f64>();
         let (l, s, h) = probit_row(rows.trials[r], rows.yes[r], eta);
         g += l;
-        if curvature {
-            for a in 0..q {
-                sc.grad_u[a] += s * w[a];
-                for b in 0..q {
-                    sc.neg_hess_u[a * q + b] -= h * w[a] * w[b];
-                }
+        for a in 0..q {
+            sc.grad_u[a] += s * w[a];
+            for b in 0..q {
+                sc.neg_hess_u[a * q + b] -= h * w[a] * w[b];
             }
         }
     }
@@ -258,7 +254,7 @@ const MODE_STEPS: usize = 60;
 /// `sc.chol` the Cholesky factor of −∇²g(û). `None` if the search fails.
 fn find_mode(rows: &AnimalRows, sc: &mut Scratch, q: usize, mode: &mut [f64]) -> Option<f64> {
     sc.u.copy_from_slice(mode);
-    let mut g = g_at(rows, sc, q, true);
+    let mut g = g_at(rows, sc, q);
     for _ in 0..MODE_STEPS {
         if !cholesky(&sc.neg_hess_u, q, &mut sc.chol) {
             return None;
@@ -273,7 +269,7 @@ fn find_mode(rows: &AnimalRows, sc: &mut Scratch, q: usize, mode: &mut [f64]) ->
             for a in 0..q {
                 sc.u[a] = sc.start[a] + t * sc.step[a];
             }
-            let trial = g_at(rows, sc, q, true);
+            let trial = g_at(rows, sc, q);
             if trial.is_finite() && trial >= g - 1e-12 * g.abs().max(1.0) {
                 g = trial;
                 accepted = true;
@@ -295,8 +291,8 @@ fn find_mode(rows: &AnimalRows, sc: &mut Scratch, q: usize, mode: &mut [f64]) ->
     Some(g)
 }
 
-/// Adds one animal's marginal log-likelihood (and, with `derivatives`, its gradient and
-/// Hessian in θ) into `totals`. `mode` is the animal's previous mode, a warm start, and
+/// Adds one animal's marginal log-likelihood and its gradient and Hessian in θ into
+/// `totals`. `mode` is the animal's previous mode, a warm start, and
 /// is updated. `None` when the animal's integrand cannot be evaluated.
 pub fn add_animal(
     rows: &AnimalRows,
@@ -304,7 +300,6 @@ pub fn add_animal(
     grid: &ProductGrid,
     mode: &mut [f64],
     sc: &mut Scratch,
-    derivatives: bool,
     totals: &mut Totals,
 ) -> Option<()> {
     let (p, q) = (params.p, params.q);
@@ -340,19 +335,12 @@ pub fn add_animal(
         }
     }
     let mut s0 = 0.0;
-    if derivatives {
-        sc.s1.iter_mut().for_each(|x| *x = 0.0);
-        sc.s2.iter_mut().for_each(|x| *x = 0.0);
-    }
+    sc.s1.iter_mut().for_each(|x| *x = 0.0);
+    sc.s2.iter_mut().for_each(|x| *x = 0.0);
     for m in 0..grid.len() {
         let x = grid.point(m);
         for i in 0..q {
             sc.u[i] = mode[i] + (0..q).map(|j| sc.scale[i * q + j] * x[j]).sum::<f64>();
-        }
-        if !derivatives {
-            let g = g_at(rows, sc, q, false);
-            s0 += (grid.log_weights[m] + g - g_hat).exp();
-            continue;
         }
         // g, ∂g/∂θ and Σ_r h_r ∂η_r ∂η_rᵀ + s_r ∂²η_r at this node.
         let mut g = -0.5 * sc.u.iter().map(|v| v * v).sum::<f64>();
@@ -412,16 +400,14 @@ pub fn add_animal(
         return None;
     }
     totals.loglik += loglik;
-    if derivatives {
-        for k in 0..len {
-            let ek = sc.s1[k] / s0;
-            totals.gradient[k] += ek;
-            for l in 0..=k {
-                let v = sc.s2[k * len + l] / s0 - ek * sc.s1[l] / s0;
-                totals.hessian[k * len + l] += v;
-                if l != k {
-                    totals.hessian[l * len + k] += v;
-                }
+    for k in 0..len {
+        let ek = sc.s1[k] / s0;
+        totals.gradient[k] += ek;
+        for l in 0..=k {
+            let v = sc.s2[k * len + l] / s0 - ek * sc.s1[l] / s0;
+            totals.hessian[k * len + l] += v;
+            if l != k {
+                totals.hessian[l * len + k] += v;
             }
         }
     }
