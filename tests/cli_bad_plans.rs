@@ -295,3 +295,25 @@ fn two_choice_record_with_a_rating_scale_names_left_right_choices() {
     let msg = rejected(text, 10, "design[1].record");
     assert!(msg.contains("keeps left/right choices only"), "{msg}");
 }
+
+// The random-effects keys: a node count outside 1–15, and nodes without the analysis, are
+// refused at their line and key.
+#[test]
+fn random_effects_nodes_are_checked() {
+    let with =
+        |extra: &str| colony().replace("trial_cap = 60 ", &format!("{extra}\ntrial_cap = 60 "));
+    let text = with("random_effects = true\nquadrature_nodes = 40");
+    let msg = rejected(
+        &text,
+        line_of(&text, "quadrature_nodes"),
+        "animals.quadrature_nodes",
+    );
+    assert!(msg.contains("outside 1 to 15"), "{msg}");
+    let text = with("quadrature_nodes = 5");
+    let msg = rejected(
+        &text,
+        line_of(&text, "quadrature_nodes"),
+        "animals.quadrature_nodes",
+    );
+    assert!(msg.contains("needs random_effects = true"), "{msg}");
+}
