@@ -291,10 +291,10 @@ impl<P: AnimalPath> Kernel for GroupKernel<P> {
     fn tally(&self) -> GroupTally {
         GroupTally {
             tests: vec![GroupTestTally::default(); self.tests.len()],
-            random_effects: self
-                .random_effects
-                .as_ref()
-                .map(|a| RandomEffectsTally::new(self.tests.len(), a.nodes, &a.layout)),
+            random_effects: self.random_effects.as_ref().map(|a| {
+                let animals = self.animals as usize;
+                RandomEffectsTally::new(&self.tests, animals, a.nodes, &a.layout)
+            }),
             ..GroupTally::default()
         }
     }
@@ -317,12 +317,16 @@ impl<P: AnimalPath> Kernel for GroupKernel<P> {
         if let (Some(analysis), Some(into)) = (&self.random_effects, tally.random_effects.as_mut())
         {
             let start = main.start(analysis.layout.conditions.len(), analysis.layout.q());
+            // c: t on the N − 1 degrees of freedom of the animals fitted; d′: z (see
+            // `RandomEffectsAnalysis::reference`).
+            let t = self.t_crit[main.tables.len().saturating_sub(1).max(1)];
+            let critical = (t, self.z_crit);
             analysis.record_study(
                 &main.tables,
                 &start,
                 &self.tests,
                 self.alpha,
-                self.z_crit,
+                critical,
                 self.truth,
                 into,
             );

@@ -91,6 +91,8 @@ pub struct RandomEffectsTestSummary {
     /// Rejections of the contrast's true value (false positives).
     pub wald_false: Share,
     pub lr_false: Share,
+    /// Degrees of freedom of the Student's t both statistics are referred to; `None`: N(0, 1).
+    pub df: Option<f64>,
 }
 
 /// What the random-effects analysis gives at one grid point.
@@ -109,6 +111,8 @@ pub struct RandomEffectsSummary {
     /// Mean fitted between-animal SDs of c and d′.
     pub sd_criterion: Figure,
     pub sd_d_prime: Figure,
+    /// Degrees of freedom of the t behind the mean c's intervals (d′'s use z).
+    pub criterion_df: Option<f64>,
     pub tests: Vec<RandomEffectsTestSummary>,
 }
 
@@ -131,10 +135,13 @@ fn random_effects_summary(
         d_prime: precision(&t.d_prime, truth.1),
         sd_criterion: figure(&t.sd_criterion),
         sd_d_prime: figure(&t.sd_d_prime),
+        criterion_df: t.criterion_df,
         tests: tests
             .iter()
             .zip(&t.tests)
-            .map(|(test, x)| RandomEffectsTestSummary {
+            .enumerate()
+            .map(|(i, (test, x))| RandomEffectsTestSummary {
+                df: t.test_df.get(i).copied().flatten(),
                 name: test.name.clone(),
                 wald: share(x.wald_reject, studies),
                 lr: share(x.lr_reject, studies),

@@ -7,8 +7,7 @@
 
 use crate::vocab::Sided;
 
-use super::{InferError, Moments, NullDistribution, TestOutcome, check_alpha, check_finite};
-use statrs::distribution::{ContinuousCDF, StudentsT};
+use super::{InferError, Moments, TestOutcome, check_alpha, check_finite, t_outcome};
 
 /// Moments of a sample after checking every value is finite and there are ≥ 2 of them.
 fn sample_moments(what: &'static str, values: &[f64]) -> Result<Moments, InferError> {
@@ -23,25 +22,6 @@ fn sample_moments(what: &'static str, values: &[f64]) -> Result<Moments, InferEr
         });
     }
     Ok(values.iter().copied().collect())
-}
-
-/// Refers t to Student's t with `df` degrees of freedom (df > 0 and finite here).
-fn t_outcome(t: f64, df: f64, sided: Sided, alpha: f64) -> Result<TestOutcome, InferError> {
-    if !t.is_finite() {
-        return Err(InferError::StatisticOverflow(t));
-    }
-    let dist = StudentsT::new(0.0, 1.0, df).map_err(|_| InferError::NonFinite {
-        what: "degrees of freedom",
-        value: df,
-    })?;
-    let p = sided.p_value(dist.cdf(t), dist.sf(t));
-    Ok(TestOutcome::new(
-        t,
-        NullDistribution::StudentsT { df },
-        sided,
-        p,
-        alpha,
-    ))
 }
 
 /// One-sample t test of mean = `null_mean`: t = (x̄ − μ₀)/(s/√n), df = n − 1.

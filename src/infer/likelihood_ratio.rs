@@ -7,7 +7,7 @@
 
 use crate::vocab::Sided;
 
-use super::{InferError, NullDistribution, TestOutcome, check_alpha, check_finite};
+use super::{InferError, NullDistribution, Reference, TestOutcome, check_alpha, check_finite};
 use statrs::distribution::{ChiSquared, ContinuousCDF};
 
 /// How far the restricted log-likelihood may exceed the full one and still be read as
@@ -72,18 +72,26 @@ pub fn signed_root_test(
     sided: Sided,
     alpha: f64,
 ) -> Result<TestOutcome, InferError> {
+    let fits = (loglik_full, loglik_restricted);
+    signed_root_test_referred(fits, estimate, null, Reference::Normal, sided, alpha)
+}
+
+/// [`signed_root_test`] with r referred to `reference` (Student's t for a small-sample
+/// version), from the (full, restricted) log-likelihoods; the same errors.
+pub fn signed_root_test_referred(
+    (loglik_full, loglik_restricted): (f64, f64),
+    estimate: f64,
+    null: f64,
+    reference: Reference,
+    sided: Sided,
+    alpha: f64,
+) -> Result<TestOutcome, InferError> {
     let alpha = check_alpha(alpha)?;
     let est = check_finite("estimate", estimate)?;
     let null = check_finite("null value", null)?;
     let g = deviance(loglik_full, loglik_restricted)?;
     let r = if est >= null { g.sqrt() } else { -g.sqrt() };
-    Ok(TestOutcome::new(
-        r,
-        NullDistribution::StandardNormal,
-        sided,
-        sided.normal_p_value(r),
-        alpha,
-    ))
+    reference.outcome(r, sided, alpha)
 }
 
 #[cfg(test)]

@@ -18,10 +18,10 @@ pub mod wilson;
 
 pub use error::InferError;
 pub use group::{one_sample_t, paired_t, welch_t};
-pub use likelihood_ratio::{likelihood_ratio_test, signed_root_test};
+pub use likelihood_ratio::{likelihood_ratio_test, signed_root_test, signed_root_test_referred};
 pub use moments::{CoMoments, FourthMoments, Moments};
 pub use power::wald_power;
-pub use wald::{wald_interval, wald_test};
+pub use wald::{wald_interval, wald_test, wald_test_referred};
 pub use wilson::wilson_interval;
 
 use crate::model::normal;
@@ -99,6 +99,60 @@ impl TestOutcome {
             NullDistribution::StudentsT { df } | NullDistribution::ChiSquared { df } => Some(df),
         }
     }
+}
+
+/// The distribution a z-like statistic is referred to: N(0, 1), or Student's t with the
+/// given degrees of freedom (a small-sample reference for a Wald or signed-root statistic).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Reference {
+    Normal,
+    StudentsT(f64),
+}
+
+impl Reference {
+    /// The outcome of `statistic` under this reference.
+    pub(crate) fn outcome(
+        self,
+        statistic: f64,
+        sided: Sided,
+        alpha: f64,
+    ) -> Result<TestOutcome, InferError> {
+        match self {
+            Reference::Normal => Ok(TestOutcome::new(
+                statistic,
+                NullDistribution::StandardNormal,
+                sided,
+                sided.normal_p_value(statistic),
+                alpha,
+            )),
+            Reference::StudentsT(df) => t_outcome(statistic, df, sided, alpha),
+        }
+    }
+}
+
+/// Refers a statistic to Student's t with `df` degrees of freedom (df > 0 and finite).
+pub(crate) fn t_outcome(
+    t: f64,
+    df: f64,
+    sided: Sided,
+    alpha: f64,
+) -> Result<TestOutcome, InferError> {
+    use statrs::distribution::{ContinuousCDF, StudentsT};
+    if !t.is_finite() {
+        return Err(InferError::StatisticOverflow(t));
+    }
+    let dist = StudentsT::new(0.0, 1.0, df).map_err(|_| InferError::NonFinite {
+        what: "degrees of freedom",
+        value: df,
+    })?;
+    let p = sided.p_value(dist.cdf(t), dist.sf(t));
+    Ok(TestOutcome::new(
+        t,
+        NullDistribution::StudentsT { df },
+        sided,
+        p,
+        alpha,
+    ))
 }
 
 /// Checks a significance level 0 < α < 1.

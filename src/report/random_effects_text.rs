@@ -43,17 +43,33 @@ pub fn block(
         );
         let (wl, wh) = range(&|s| s.tests[i].wald_false.value);
         let (ll, lh) = range(&|s| s.tests[i].lr_false.value);
+        let reference = if first.tests[i].df.is_some() {
+            let means = if test.two_populations() {
+                "N − 2, for the two groups' means"
+            } else {
+                "N − 1"
+            };
+            format!(
+                "Both refer their statistic to Student's t on the animals' degrees of freedom ({means}), \
+                 as the two-stage t test does: the normal reference is optimistic with few animals."
+            )
+        } else {
+            "Both refer their statistic to the normal distribution: a within-animal contrast with no \
+             between-animal SD, whose precision grows with trials."
+                .to_string()
+        };
         let _ = writeln!(
             out,
-            "Random-effects false positives (each test of the true value): Wald {wl:.2}–{wh:.2}, likelihood ratio {ll:.2}–{lh:.2}, against α = {}. \
-             Both refer their statistic to the normal distribution, which is optimistic with few animals.",
+            "Random-effects false positives (each test of the true value): Wald {wl:.2}–{wh:.2}, likelihood ratio {ll:.2}–{lh:.2}, against α = {}. {reference}",
             r.alpha
         );
     }
     let _ = writeln!(
         out,
-        "Random-effects mean of c (population {:+.2}): Wald SE (average over studies) · 95% coverage",
-        d.truth_criterion
+        "Random-effects mean of c (population {:+.2}): Wald SE (average over studies) · {}% coverage \
+         (intervals ± t on N − 1 degrees of freedom × SE)",
+        d.truth_criterion,
+        super::format::plain((1000.0 * r.confidence).round() / 10.0)
     );
     let _ = writeln!(
         out,

@@ -9,7 +9,7 @@ use super::marginal::AnimalRows;
 use super::quadrature::{HermiteRule, ProductGrid};
 use super::tally::{RandomEffectsTally, RandomEffectsTestTally};
 use crate::groups::hypotheses::{GroupContrast, GroupTest};
-use crate::infer::{signed_root_test, wald_test};
+use crate::infer::{Reference, signed_root_test_referred, wald_test_referred};
 
 /// Where a fit starts: each condition's (d′, c) (the pooled fit's, a consistent guess for
 /// the means), the SDs of the random effects (from the per-animal estimates) and, for a group
@@ -96,6 +96,30 @@ impl RandomEffectsAnalysis {
         }
     }
 
+    /// What a contrast's Wald and signed-root statistics are referred to, with `animals`
+    /// animals in the fit. A contrast between animals — the mean criterion, whose column is
+    /// the same on all of an animal's rows, or a group difference — is referred to Student's
+    /// t on the animals' degrees of freedom (N − 1; N − 2 for a group difference, whose fit
+    /// has two means): the between-within rule (Schluchter & Elashoff 1990, *J. Stat.
+    /// Comput. Simul.* 37:69–87; from memory), under which a mean of animals is tested as
+    /// the two-stage t test tests it. So is a within-animal contrast (a shift between
+    /// conditions) that carries a random slope, whose variance is then mostly between
+    /// animals. A within-animal contrast with no random slope is referred to N(0, 1): its
+    /// precision grows with trials, not animals.
+    pub fn reference(layout: &Layout, contrast: &GroupContrast, animals: usize) -> Reference {
+        let between = match contrast {
+            GroupContrast::Criterion { .. } => Some(1),
+            GroupContrast::GroupDifference { .. } => Some(2),
+            GroupContrast::CriterionShift { .. } => layout.criterion_slope.then_some(1),
+            GroupContrast::SensitivityDifference { .. } => layout.d_prime_slope.then_some(1),
+            GroupContrast::LnSigma => None,
+        };
+        match between {
+            Some(k) if animals > k => Reference::StudentsT((animals - k) as f64),
+            _ => Reference::Normal,
+        }
+    }
+
     /// Wald and LR tests of contrast = `value` on a converged fit.
     #[allow(clippy::too_many_arguments)]
     fn test_at(
@@ -111,7 +135,8 @@ impl RandomEffectsAnalysis {
         let Some((estimate, se)) = full.contrast(weights, layout.p()) else {
             return (None, None);
         };
-        let wald = wald_test(estimate, se, value, test.sided, alpha)
+        let reference = Self::reference(layout, &test.contrast, rows.len());
+        let wald = wald_test_referred(estimate, se, value, reference, test.sided, alpha)
             .ok()
             .map(|o| o.reject);
         let restriction = Restriction {
@@ -122,7 +147,8 @@ impl RandomEffectsAnalysis {
             .fit(layout, rows, &full.theta, Some(&restriction))
             .ok()
             .and_then(|r| {
-                signed_root_test(full.loglik, r.loglik, estimate, value, test.sided, alpha).ok()
+                let fits = (full.loglik, r.loglik);
+                signed_root_test_referred(fits, estimate, value, reference, test.sided, alpha).ok()
             })
             .map(|o| o.reject);
         (wald, lr)
@@ -148,7 +174,7 @@ impl RandomEffectsAnalysis {
     }
 
     /// The main study: every test on one population, and the precision of the first
-    /// condition's mean c and d′ (Wald intervals with critical value `z`).
+    /// condition's mean c and d′ (intervals ± `critical`·SE: t on N − 1 for c, z for d′).
     #[allow(clippy::too_many_arguments)]
     pub fn record_study(
         &self,
@@ -156,7 +182,7 @@ impl RandomEffectsAnalysis {
         start: &Start,
         tests: &[GroupTest],
         alpha: f64,
-        z: f64,
+        critical: (f64, f64),
         truth: (f64, f64),
         tally: &mut RandomEffectsTally,
     ) {
@@ -164,7 +190,7 @@ impl RandomEffectsAnalysis {
         let rows: Vec<AnimalRows> = tables.iter().map(|t| layout.rows(t, false)).collect();
         let theta = start_theta(&layout.start_beta(&start.values, 0.0), &start.sds);
         let full = self.fit(layout, &rows, &theta, None);
-        tally.record_fit(full.as_ref().ok(), layout, z, truth);
+        tally.record_fit(full.as_ref().ok(), layout, critical, truth);
         for (test, into) in tests.iter().zip(tally.tests.iter_mut()) {
             if !test.two_populations() {
                 self.record_test(layout, &rows, full.as_ref().ok(), test, alpha, into);

@@ -217,13 +217,11 @@ impl MixedProblem<'_> {
             scratch: Scratch::new(rows, self.p, self.q),
             steps: 0,
         };
-        if self.grid.len() > COARSE_NODES.pow(self.q as u32) {
-            let coarse =
-                ProductGrid::new(&super::quadrature::HermiteRule::new(COARSE_NODES), self.q);
+        if let Some(coarse) = self.coarse.filter(|c| c.len() < self.grid.len()) {
             // A coarse phase that fails leaves the start as it was.
             let saved = (state.phi.clone(), state.modes.clone());
             if self
-                .ascend(&coarse, &map, &mut state, COARSE_HANDOVER)
+                .ascend(coarse, &map, &mut state, COARSE_HANDOVER)
                 .is_err()
             {
                 (state.phi, state.modes) = saved;

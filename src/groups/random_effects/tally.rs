@@ -1,9 +1,11 @@
 //! What the random-effects analysis accumulates over simulated studies.
 
+use super::analysis::RandomEffectsAnalysis;
 use super::fit::MixedFit;
 use super::layout::Layout;
+use crate::groups::hypotheses::{GroupContrast, GroupTest};
 use crate::groups::kernel::PrecisionTally;
-use crate::infer::Moments;
+use crate::infer::{Moments, Reference};
 use serde::{Deserialize, Serialize};
 
 /// Rejections and failures of one hypothesis under the random-effects analysis.
@@ -67,24 +69,43 @@ pub struct RandomEffectsTally {
     pub sd_criterion: Moments,
     pub sd_d_prime: Moments,
     pub tests: Vec<RandomEffectsTestTally>,
+    /// Degrees of freedom of each test's t reference (`None`: the normal), and of the mean
+    /// c's interval: fixed by the design and the number of animals, recorded for the report.
+    #[serde(default)]
+    pub test_df: Vec<Option<f64>>,
+    #[serde(default)]
+    pub criterion_df: Option<f64>,
 }
 
 impl RandomEffectsTally {
-    pub fn new(tests: usize, nodes: usize, layout: &Layout) -> Self {
+    /// An empty tally for `tests` on studies of `animals` animals.
+    pub fn new(tests: &[GroupTest], animals: usize, nodes: usize, layout: &Layout) -> Self {
+        let df = |contrast: &GroupContrast| match RandomEffectsAnalysis::reference(
+            layout, contrast, animals,
+        ) {
+            Reference::StudentsT(df) => Some(df),
+            Reference::Normal => None,
+        };
+        let mean_c = GroupContrast::Criterion { condition: 0 };
         Self {
             nodes: nodes as u32,
             random: layout.random_names(),
-            tests: vec![RandomEffectsTestTally::default(); tests],
+            tests: vec![RandomEffectsTestTally::default(); tests.len()],
+            test_df: tests.iter().map(|t| df(&t.contrast)).collect(),
+            criterion_df: df(&mean_c),
             ..Self::default()
         }
     }
 
-    /// Records the main study's fit (or its failure).
+    /// Records the main study's fit (or its failure); `critical` = the interval's critical
+    /// values for the mean (c, d′): t on the animals' N − 1 degrees of freedom for c, a
+    /// between-animal contrast, and z for d′, a within-animal one (see
+    /// `RandomEffectsAnalysis::reference`).
     pub fn record_fit(
         &mut self,
         fit: Option<&MixedFit>,
         layout: &Layout,
-        z: f64,
+        critical: (f64, f64),
         truth: (f64, f64),
     ) {
         let Some(fit) = fit else {
@@ -98,8 +119,8 @@ impl RandomEffectsTally {
         if let (Some((ce, cs)), Some((de, ds))) =
             (fit.contrast(&[(c, 1.0)], p), fit.contrast(&[(d, 1.0)], p))
         {
-            self.criterion.push(ce, cs, z * cs, truth.0);
-            self.d_prime.push(de, ds, z * ds, truth.1);
+            self.criterion.push(ce, cs, critical.0 * cs, truth.0);
+            self.d_prime.push(de, ds, critical.1 * ds, truth.1);
         }
         let sigma = fit.sigma(p, q);
         self.sd_d_prime.push(sigma[0].sqrt(), 1.0);
